@@ -1,0 +1,155 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"headroom/internal/freqtable"
+)
+
+func init() {
+	register(subcommand{name: "counts", summary: "estimate from frequency-count tables (or per-unit counts)", run: runCounts})
+}
+
+const countsUsage = `usage: headroom counts [flags] FILE...
+
+Estimates from frequency-count tables: tab-separated files with the header
+"sample<TAB>times_seen<TAB>units", one row per sample and frequency (units =
+how many distinct units were seen exactly times_seen times). Several samples
+may share a file; '-' reads standard input. With --per-unit, each FILE holds
+one count per line per unit, and the sample is named after the file.
+
+Writes one summary row per sample (TSV or JSON) to stdout or -o FILE.
+
+flags:
+%s
+exit status: 0 success, 1 bad input, 2 usage error, 3 a gate failed under --strict
+
+example:
+  headroom counts --at 10x,50M --bootstrap 200 testdata/demo/qc-pass.counts.tsv
+`
+
+func runCounts(a *app, args []string) error {
+	fs := pflag.NewFlagSet("counts", pflag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	fs.SortFlags = false
+	s := addShared(fs)
+	perUnit := fs.Bool("per-unit", false, "each FILE is one count per line per unit; the sample is named after the file")
+	help := fs.BoolP("help", "h", false, "show this help")
+	usage := func() string { return fmt.Sprintf(countsUsage, fs.FlagUsages()) }
+	if err := fs.Parse(args); err != nil {
+		return &exitError{code: exitUsage, msg: "counts: " + err.Error(), usage: "usage: headroom counts [flags] FILE... (see headroom counts --help)"}
+	}
+	if *help {
+		fmt.Fprint(a.stdout, usage())
+		return nil
+	}
+	if err := s.check(); err != nil {
+		return err
+	}
+	files := fs.Args()
+	if len(files) == 0 {
+		return &exitError{code: exitUsage, msg: "counts: no input files", usage: "usage: headroom counts [flags] FILE... (see headroom counts --help)"}
+	}
+	var samples []sampleInput
+	from := map[string]string{}
+	stdinUsed := false
+	for _, f := range files {
+		if f == "-" {
+			if stdinUsed {
+				return usagef("counts: '-' (standard input) given twice")
+			}
+			stdinUsed = true
+		}
+		got, err := readCountsFile(a, f, *perUnit)
+		if err != nil {
+			return err
+		}
+		for _, g := range got {
+			if prev, ok := from[g.name]; ok {
+				return inputf(displayName(f), 0, "sample %q is also in %s; give each sample once, or add shards first with 'headroom merge'", g.name, displayName(prev))
+			}
+			from[g.name] = f
+			samples = append(samples, g)
+		}
+	}
+	return a.estimateAndWrite(s, runInfo{command: "counts", inputs: files}, samples)
+}
+
+// displayName is how an input is named in messages.
+func displayName(f string) string {
+	if f == "-" {
+		return "<stdin>"
+	}
+	return f
+}
+
+// openInput opens a named input ('-' = stdin), refusing directories and
+// missing files with a message that says what to do.
+func openInput(a *app, f string) (io.ReadCloser, error) {
+	if f == "-" {
+		return io.NopCloser(a.stdin), nil
+	}
+	st, err := os.Stat(f)
+	if err != nil {
+		if errors.Is(err, os.ErrNotExist) {
+			return nil, inputf(f, 0, "no such file; check the path")
+		}
+		return nil, inputf(f, 0, "cannot read: %v", unwrapPath(err))
+	}
+	if st.IsDir() {
+		return nil, inputf(f, 0, "is a directory; give the file(s) inside it")
+	}
+	fh, err := os.Open(f)
+	if err != nil {
+		return nil, inputf(f, 0, "cannot open: %v", unwrapPath(err))
+	}
+	return fh, nil
+}
+
+func readCountsFile(a *app, f string, perUnit bool) ([]sampleInput, error) {
+	r, err := openInput(a, f)
+	if err != nil {
+		return nil, err
+	}
+	defer r.Close()
+	if perUnit {
+		c, err := freqtable.ReadPerUnit(r)
+		if err != nil {
+			return nil, tableError(f, err)
+		}
+		name := "stdin"
+		if f != "-" {
+			name = strings.TrimSuffix(filepath.Base(f), filepath.Ext(f))
+		}
+		return []sampleInput{{name: name, counts: c}}, nil
+	}
+	got, err := freqtable.Read(r)
+	if err != nil {
+		return nil, tableError(f, err)
+	}
+	out := make([]sampleInput, len(got))
+	for i, g := range got {
+		out[i] = sampleInput{name: g.Name, counts: g.Counts}
+	}
+	return out, nil
+}
+
+// tableError turns a freqtable error into "FILE:LINE: message".
+func tableError(f string, err error) error {
+	var pe *freqtable.ParseError
+	if errors.As(err, &pe) {
+		msg := strings.TrimPrefix(pe.Err.Error(), "freqtable: ")
+		if pe.Column > 0 {
+			msg = fmt.Sprintf("column %d: %s", pe.Column, msg)
+		}
+		return inputf(displayName(f), pe.Line, "%s", msg)
+	}
+	return inputf(displayName(f), 0, "cannot read: %v", err)
+}

@@ -1,0 +1,87 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+)
+
+// outputs collects rendered output files so that they are written all or
+// nothing: each goes to a temporary file in its destination's folder and is
+// renamed into place only when every one of them was written. A failure
+// leaves no half-written file and an older file of that name untouched.
+type outputs struct {
+	files []pendingFile
+}
+
+type pendingFile struct {
+	path string // "" or "-" = stdout
+	data []byte
+}
+
+func (o *outputs) add(path string, data []byte) {
+	o.files = append(o.files, pendingFile{path, data})
+}
+
+// commit writes every file, then the stdout ones.
+func (o *outputs) commit(stdout io.Writer) error {
+	type temp struct{ tmp, dst string }
+	var temps []temp
+	cleanup := func() {
+		for _, t := range temps {
+			os.Remove(t.tmp)
+		}
+	}
+	for _, f := range o.files {
+		if f.path == "" || f.path == "-" {
+			continue
+		}
+		dir := filepath.Dir(f.path)
+		if st, err := os.Stat(f.path); err == nil && st.IsDir() {
+			cleanup()
+			return inputf(f.path, 0, "is a directory; give a file name for the output")
+		}
+		tf, err := os.CreateTemp(dir, "."+filepath.Base(f.path)+".tmp-*")
+		if err != nil {
+			cleanup()
+			return inputf(f.path, 0, "cannot create output: %v", unwrapPath(err))
+		}
+		temps = append(temps, temp{tf.Name(), f.path})
+		_, werr := tf.Write(f.data)
+		cerr := tf.Close()
+		if werr == nil {
+			werr = cerr
+		}
+		if werr == nil {
+			werr = os.Chmod(tf.Name(), 0o644)
+		}
+		if werr != nil {
+			cleanup()
+			return inputf(f.path, 0, "cannot write output: %v", unwrapPath(werr))
+		}
+	}
+	for i, t := range temps {
+		if err := os.Rename(t.tmp, t.dst); err != nil {
+			cleanup()
+			return inputf(t.dst, 0, "cannot write output: %v", unwrapPath(err))
+		}
+		temps[i].tmp = "" // renamed: nothing to clean
+	}
+	for _, f := range o.files {
+		if f.path == "" || f.path == "-" {
+			if _, err := stdout.Write(f.data); err != nil {
+				return fmt.Errorf("writing to standard output: %v", err)
+			}
+		}
+	}
+	return nil
+}
+
+// unwrapPath drops the *PathError wrapper (the path is already in the message).
+func unwrapPath(err error) error {
+	if pe, ok := err.(*os.PathError); ok {
+		return pe.Err
+	}
+	return err
+}

@@ -1,0 +1,183 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"runtime"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/pflag"
+)
+
+// depthSpec is one --at depth: a multiple of the sample's own reads
+// ("10x") or an absolute number of reads ("50M").
+type depthSpec struct {
+	label    string  // as written, used in column names
+	multiple float64 // > 0 when relative
+	absolute float64 // > 0 when absolute
+}
+
+// reads returns the depth in reads for a sample of n reads.
+func (d depthSpec) reads(n int64) float64 {
+	if d.multiple > 0 {
+		return d.multiple * float64(n)
+	}
+	return d.absolute
+}
+
+// parseDepth reads "10x", "50M", "2.5G", "1e8", "40000000", "500k".
+func parseDepth(s string) (depthSpec, error) {
+	t := strings.TrimSpace(s)
+	if t == "" {
+		return depthSpec{}, fmt.Errorf("empty depth")
+	}
+	d := depthSpec{label: t}
+	mult := 1.0
+	num := t
+	switch last := t[len(t)-1]; last {
+	case 'x', 'X':
+		num = t[:len(t)-1]
+		v, err := strconv.ParseFloat(num, 64)
+		if err != nil || !(v > 0) || math.IsInf(v, 0) {
+			return depthSpec{}, fmt.Errorf("depth %q: a multiple must be a positive number followed by x, e.g. 10x", s)
+		}
+		d.multiple = v
+		return d, nil
+	case 'k', 'K':
+		mult, num = 1e3, t[:len(t)-1]
+	case 'm', 'M':
+		mult, num = 1e6, t[:len(t)-1]
+	case 'g', 'G':
+		mult, num = 1e9, t[:len(t)-1]
+	}
+	v, err := strconv.ParseFloat(num, 64)
+	if err != nil || !(v > 0) || math.IsInf(v*mult, 0) {
+		return depthSpec{}, fmt.Errorf("depth %q: use a multiple like 10x or a number of reads like 50M, 2.5G, 1e8", s)
+	}
+	d.absolute = math.Round(v * mult)
+	if d.absolute < 1 {
+		return depthSpec{}, fmt.Errorf("depth %q is below one read", s)
+	}
+	return d, nil
+}
+
+// shared holds the flags every estimating subcommand accepts (DESIGN.md).
+type shared struct {
+	at          []string
+	format      string
+	output      string
+	curve       string
+	plot        string
+	report      string
+	saveCounts  string
+	bootstrap   int
+	seed        uint64
+	level       float64
+	threads     int
+	target      string
+	maxDup      float64
+	minDistinct float64
+	minCoverage float64
+	strict      bool
+	progress    string
+
+	// parsed
+	depths      []depthSpec
+	targetDepth *depthSpec
+}
+
+func addShared(fs *pflag.FlagSet) *shared {
+	s := &shared{}
+	fs.StringSliceVar(&s.at, "at", []string{"2x", "10x", "100x"}, "depths to predict at: `LIST` of multiples of the sample's reads (10x) or absolute reads (50M, 2.5G, 1e8)")
+	fs.StringVar(&s.format, "format", "tsv", "summary format: tsv or json")
+	fs.StringVarP(&s.output, "output", "o", "", "write the summary to `FILE` (default stdout), atomically")
+	fs.StringVar(&s.curve, "curve", "", "write the long-format curve (sample reads distinct lo hi kind) to `FILE`")
+	fs.StringVar(&s.plot, "plot", "", "write a saturation plot to `FILE` (.svg or .png)")
+	fs.StringVar(&s.report, "report", "", "write a self-contained HTML report to `FILE`")
+	fs.StringVar(&s.saveCounts, "save-counts", "", "write the frequency-count tables estimated from to `FILE`")
+	fs.IntVar(&s.bootstrap, "bootstrap", 100, "bootstrap replicates for confidence intervals (`N`, 0 = none)")
+	fs.Uint64Var(&s.seed, "seed", 1, "random seed for the bootstrap (same seed, same output)")
+	fs.Float64Var(&s.level, "level", 0.95, "confidence level of the intervals, between 0 and 1")
+	fs.IntVar(&s.threads, "threads", runtime.NumCPU(), "worker goroutines (output does not depend on it)")
+	fs.StringVar(&s.target, "target", "", "`DEPTH` at which the gates are evaluated (10x, 50M, ...; default: the first --at depth)")
+	fs.Float64Var(&s.maxDup, "max-dup", math.NaN(), "gate: fail when the duplicate fraction at the target exceeds `F`")
+	fs.Float64Var(&s.minDistinct, "min-distinct", math.NaN(), "gate: fail when fewer than `N` distinct units are expected at the target")
+	fs.Float64Var(&s.minCoverage, "min-coverage", math.NaN(), "gate: fail when the sample coverage at the target is below `C`")
+	fs.BoolVar(&s.strict, "strict", false, "exit with status 3 when any sample fails a gate")
+	fs.StringVar(&s.progress, "progress", "auto", "progress on stderr: auto (only on a terminal), always or never")
+	return s
+}
+
+// check validates the shared flags after parsing; errors are usage errors.
+func (s *shared) check() error {
+	s.depths = s.depths[:0]
+	seen := map[string]bool{}
+	for _, a := range s.at {
+		if strings.TrimSpace(a) == "" {
+			continue
+		}
+		d, err := parseDepth(a)
+		if err != nil {
+			return usagef("--at: %v", err)
+		}
+		if seen[d.label] {
+			return usagef("--at: depth %q given twice", d.label)
+		}
+		seen[d.label] = true
+		s.depths = append(s.depths, d)
+	}
+	switch s.format {
+	case "tsv", "json":
+	default:
+		return usagef("--format must be tsv or json, not %q", s.format)
+	}
+	if s.bootstrap < 0 {
+		return usagef("--bootstrap must be 0 or more, not %d", s.bootstrap)
+	}
+	if !(s.level > 0 && s.level < 1) {
+		return usagef("--level must be between 0 and 1 (e.g. 0.95), not %v", s.level)
+	}
+	if s.threads < 1 {
+		return usagef("--threads must be at least 1, not %d", s.threads)
+	}
+	if s.target != "" {
+		d, err := parseDepth(s.target)
+		if err != nil {
+			return usagef("--target: %v", err)
+		}
+		s.targetDepth = &d
+	}
+	if !math.IsNaN(s.maxDup) && !(s.maxDup >= 0 && s.maxDup <= 1) {
+		return usagef("--max-dup must be a fraction between 0 and 1, not %v", s.maxDup)
+	}
+	if !math.IsNaN(s.minCoverage) && !(s.minCoverage >= 0 && s.minCoverage <= 1) {
+		return usagef("--min-coverage must be between 0 and 1, not %v", s.minCoverage)
+	}
+	if !math.IsNaN(s.minDistinct) && !(s.minDistinct >= 0) {
+		return usagef("--min-distinct must be 0 or more, not %v", s.minDistinct)
+	}
+	if s.plot != "" {
+		return usagef("--plot is not available yet in this version; use --curve FILE and plot the long-format curve")
+	}
+	if s.report != "" {
+		return usagef("--report is not available yet in this version")
+	}
+	switch s.progress {
+	case "auto", "always", "never":
+	default:
+		return usagef("--progress must be auto, always or never, not %q", s.progress)
+	}
+	return nil
+}
+
+// showProgress reports whether progress should be drawn on stderr.
+func (s *shared) showProgress(a *app) bool {
+	switch s.progress {
+	case "always":
+		return true
+	case "never":
+		return false
+	}
+	return a.stderrTTY
+}

@@ -1,0 +1,112 @@
+package complexity
+
+import (
+	"math"
+	"math/rand/v2"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// newRand returns the generator for stream k of a seed. Every bootstrap
+// replicate and every thinning draws from its own stream, so results do
+// not depend on how work is split across goroutines.
+func newRand(seed uint64, k uint64) *rand.Rand {
+	return rand.New(rand.NewPCG(seed, k^0x9e3779b97f4a7c15))
+}
+
+// binomial draws from Binomial(n, p) for int64 n.
+func binomial(src rand.Source, n int64, p float64) int64 {
+	switch {
+	case n <= 0 || p <= 0:
+		return 0
+	case p >= 1:
+		return n
+	}
+	return int64(distuv.Binomial{N: float64(n), P: p, Src: src}.Rand())
+}
+
+// Resample draws a bootstrap replicate of c: Distinct() units drawn with
+// replacement from the observed units, so the class sizes are
+// Multinomial(D; n_j/D) (Efron 1979 bootstrap of the units, as used for
+// species-richness intervals by Chao et al.). The replicate has the same
+// number of distinct units as c but a random number of reads.
+func Resample(c Counts, rng *rand.Rand) Counts {
+	left := c.distinct
+	mass := c.distinct
+	out := Counts{classes: make([]Class, 0, len(c.classes))}
+	for i, cl := range c.classes {
+		var k int64
+		if i == len(c.classes)-1 {
+			k = left
+		} else {
+			k = binomial(rng, left, float64(cl.Units)/float64(mass))
+		}
+		left -= k
+		mass -= cl.Units
+		if k > 0 {
+			out.classes = append(out.classes, Class{Times: cl.Times, Units: k})
+			out.reads += k * cl.Times
+			out.distinct += k
+		}
+	}
+	return out
+}
+
+// Thin keeps each read independently with probability f (binomial
+// thinning): a unit seen j times is seen Binomial(j, f) times afterwards.
+// Units thinned to zero vanish. This is exactly a shallower Poisson or
+// multinomial sample of the same library (thinning a Poisson process).
+func Thin(c Counts, f float64, rng *rand.Rand) Counts {
+	if f >= 1 {
+		return c
+	}
+	m := make(map[int64]int64)
+	if f > 0 {
+		for _, cl := range c.classes {
+			thinClass(m, cl, f, rng)
+		}
+	}
+	out, err := FromMap(m)
+	if err != nil {
+		return Counts{} // cannot happen: thinning only lowers counts
+	}
+	return out
+}
+
+// thinClass thins n_j units of j reads each. With few units each is drawn
+// on its own; otherwise the n_j units are split over k = 0..j by the
+// binomial probabilities with sequential conditional binomials.
+func thinClass(m map[int64]int64, cl Class, f float64, rng *rand.Rand) {
+	j, n := cl.Times, cl.Units
+	if n <= j+1 || j > 2000 {
+		for u := int64(0); u < n; u++ {
+			if k := binomial(rng, j, f); k > 0 {
+				m[k]++
+			}
+		}
+		return
+	}
+	// P(k) = C(j,k) f^k (1-f)^(j-k), in log space.
+	lf, lg := math.Log(f), math.Log1p(-f)
+	lj, _ := math.Lgamma(float64(j + 1))
+	left := n
+	rest := 1.0
+	for k := int64(0); k < j && left > 0; k++ {
+		a, _ := math.Lgamma(float64(k + 1))
+		b, _ := math.Lgamma(float64(j - k + 1))
+		p := math.Exp(lj - a - b + float64(k)*lf + float64(j-k)*lg)
+		q := 1.0
+		if rest > 0 {
+			q = math.Min(1, p/rest)
+		}
+		x := binomial(rng, left, q)
+		if k > 0 && x > 0 {
+			m[k] += x
+		}
+		left -= x
+		rest -= p
+	}
+	if left > 0 {
+		m[j] += left
+	}
+}
