@@ -1,0 +1,72 @@
+package complexity
+
+import (
+	"math"
+	"testing"
+)
+
+// TestThinExpectation: binomial thinning keeps a unit seen j times with
+// probability 1 - (1-f)^j (closed form of the binomial zero class), so the
+// expected distinct count after thinning is sum_j n_j (1 - (1-f)^j) and
+// the expected reads f N. Checked over seeded replicates with a tolerance
+// of 5 standard errors of the replicate mean.
+func TestThinExpectation(t *testing.T) {
+	c, err := FromMap(map[int64]int64{1: 4000, 2: 1500, 3: 700, 5: 300, 12: 80, 40: 10, 3000: 2, 50000: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range []float64{0.05, 0.1, 0.5} {
+		var wantD float64
+		for _, cl := range c.Classes() {
+			wantD += float64(cl.Units) * -math.Expm1(float64(cl.Times)*math.Log1p(-f))
+		}
+		wantN := f * float64(c.Reads())
+		const reps = 400
+		var sd, sd2, sn, sn2 float64
+		for k := 0; k < reps; k++ {
+			tc := Thin(c, f, newRand(42, uint64(k)))
+			d, n := float64(tc.Distinct()), float64(tc.Reads())
+			sd += d
+			sd2 += d * d
+			sn += n
+			sn2 += n * n
+		}
+		md, mn := sd/reps, sn/reps
+		sed := math.Sqrt((sd2/reps - md*md) / reps)
+		sen := math.Sqrt((sn2/reps - mn*mn) / reps)
+		if math.Abs(md-wantD) > 5*sed {
+			t.Errorf("f=%v: mean distinct %v, want %v (se %v)", f, md, wantD, sed)
+		}
+		if math.Abs(mn-wantN) > 5*sen {
+			t.Errorf("f=%v: mean reads %v, want %v (se %v)", f, mn, wantN, sen)
+		}
+	}
+}
+
+// TestResample: a bootstrap replicate has the same distinct count, and
+// each class's expected size is n_j (multinomial mean), so the expected
+// reads equal N; checked over seeded replicates within 5 standard errors.
+func TestResample(t *testing.T) {
+	c, _ := FromMap(map[int64]int64{1: 500, 2: 200, 3: 50, 10: 5, 100: 1})
+	const reps = 500
+	var s, s2 float64
+	for k := 0; k < reps; k++ {
+		rc := Resample(c, newRand(7, uint64(k)))
+		if rc.Distinct() != c.Distinct() {
+			t.Fatalf("replicate %d: distinct %d, want %d", k, rc.Distinct(), c.Distinct())
+		}
+		n := float64(rc.Reads())
+		s += n
+		s2 += n * n
+	}
+	m := s / reps
+	se := math.Sqrt((s2/reps - m*m) / reps)
+	if math.Abs(m-float64(c.Reads())) > 5*se {
+		t.Errorf("mean reads %v, want %v (se %v)", m, c.Reads(), se)
+	}
+	// Same stream, same replicate.
+	a, b := Resample(c, newRand(7, 3)), Resample(c, newRand(7, 3))
+	if a.Reads() != b.Reads() {
+		t.Errorf("same seed and stream gave different replicates")
+	}
+}
