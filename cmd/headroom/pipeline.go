@@ -10,6 +10,7 @@ import (
 	"sync"
 
 	"headroom/complexity"
+	"headroom/internal/freqtable"
 )
 
 // cell is one pre-formatted value of the summary: its TSV text and its JSON
@@ -294,13 +295,11 @@ func writeCurve(samples []estimated) []byte {
 // writeCounts renders frequency-count tables in the interchange format.
 func writeCounts(samples []sampleInput) []byte {
 	var b bytes.Buffer
-	b.WriteString("sample\ttimes_seen\tunits\n")
-	for _, s := range samples {
-		name := strCell(s.name).tsv
-		for _, c := range s.counts.Classes() {
-			fmt.Fprintf(&b, "%s\t%d\t%d\n", name, c.Times, c.Units)
-		}
+	ft := make([]freqtable.Sample, len(samples))
+	for i, s := range samples {
+		ft[i] = freqtable.Sample{Name: s.name, Counts: s.counts}
 	}
+	freqtable.Write(&b, ft) // writes to memory: cannot fail
 	return b.Bytes()
 }
 

@@ -83,7 +83,7 @@ func Read(r io.Reader) ([]Sample, error) {
 	)
 	for {
 		b, err := readLine(br)
-		if len(b) > 0 || err == nil {
+		if len(b) > 0 || err == nil || err == ErrLineLong {
 			line++
 		}
 		if err == ErrLineLong {
@@ -182,7 +182,7 @@ func ReadPerUnit(r io.Reader) (complexity.Counts, error) {
 	)
 	for {
 		s, err := readLine(br)
-		if len(s) > 0 || err == nil {
+		if len(s) > 0 || err == nil || err == ErrLineLong {
 			line++
 		}
 		if err == ErrLineLong {
@@ -259,12 +259,18 @@ func parseInt(s string) (int64, error) {
 	return v, nil
 }
 
-// Write writes samples as one frequency-count table.
+// Write writes samples as one frequency-count table. A sample without
+// reads is written as the single row "name 1 0" so that it survives.
 func Write(w io.Writer, samples []Sample) error {
 	bw := bufio.NewWriter(w)
 	bw.WriteString(Header + "\n")
 	for _, s := range samples {
 		name := cleanName(s.Name)
+		if s.Counts.Distinct() == 0 {
+			// A sample with no reads stays in the table as one empty class.
+			fmt.Fprintf(bw, "%s\t1\t0\n", name)
+			continue
+		}
 		for _, c := range s.Counts.Classes() {
 			fmt.Fprintf(bw, "%s\t%d\t%d\n", name, c.Times, c.Units)
 		}
