@@ -142,3 +142,30 @@ func TestCountsStdinAndSamples(t *testing.T) {
 		t.Errorf("duplicate sample: exit %d stderr %q", code, stderr)
 	}
 }
+
+// TestMerge: shards add class-wise; different sample sets and repeated
+// shards are refused.
+func TestMerge(t *testing.T) {
+	dir := t.TempDir()
+	a := writeFile(t, dir, "a.tsv", "sample\ttimes_seen\tunits\nA\t1\t10\nA\t2\t3\nB\t1\t4\n")
+	b := writeFile(t, dir, "b.tsv", "sample\ttimes_seen\tunits\nB\t1\t1\nB\t3\t2\nA\t2\t5\n")
+	c := writeFile(t, dir, "c.tsv", "sample\ttimes_seen\tunits\nA\t1\t1\nC\t1\t1\n")
+	code, out, stderr := runCLI(t, "", "merge", a, b)
+	want := "sample\ttimes_seen\tunits\nA\t1\t10\nA\t2\t8\nB\t1\t5\nB\t3\t2\n"
+	if code != 0 || out != want {
+		t.Errorf("merge: exit %d, out\n%s\nwant\n%s\nstderr %s", code, out, want, stderr)
+	}
+	code, _, stderr = runCLI(t, "", "merge", a, c)
+	if code != exitInput || !strings.Contains(stderr, "different run") || !strings.Contains(stderr, `"B"`) {
+		t.Errorf("different samples: exit %d stderr %q", code, stderr)
+	}
+	code, _, _ = runCLI(t, "", "merge", "--partial", a, c)
+	if code != 0 {
+		t.Errorf("--partial: exit %d", code)
+	}
+	a2 := writeFile(t, dir, "a2.tsv", "sample\ttimes_seen\tunits\nA\t1\t10\nA\t2\t3\nB\t1\t4\n")
+	code, _, stderr = runCLI(t, "", "merge", a, a2)
+	if code != exitInput || !strings.Contains(stderr, "identical") {
+		t.Errorf("same shard twice: exit %d stderr %q", code, stderr)
+	}
+}
