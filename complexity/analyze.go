@@ -14,7 +14,8 @@ type Options struct {
 	Level float64
 	// Threads bounds the goroutines used for the bootstrap (0 means 1).
 	Threads int
-	// Gates are the QC thresholds; see Gates.
+	// Gates are the QC thresholds; see Gates. A Target of 0 (the zero
+	// value) applies no gates.
 	Gates Gates
 	// Curve are depths (absolute reads, ascending) at which to report the
 	// curve with intervals; nil for none.

@@ -16,9 +16,9 @@ const (
 	VerdictFail Verdict = "fail"
 )
 
-// Gates are QC thresholds evaluated at a target depth. NaN (or zero Target)
-// leaves a gate unset; the zero value sets none... except that a zero
-// float is a real threshold, so use NoGates() to start from "none set".
+// Gates are QC thresholds evaluated at a target depth. A NaN threshold is
+// unset. Zero is a real threshold (a maximum duplicate fraction of 0), so
+// start from NoGates(), not from the zero value, and set what is wanted.
 type Gates struct {
 	Target      float64 // depth in reads at which gates are evaluated
 	MaxDup      float64 // fail above this duplicate fraction

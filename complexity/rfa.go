@@ -167,7 +167,7 @@ func (r *RFA) Distinct(T float64) float64 {
 	n := float64(r.c.Reads())
 	if !(T >= n) || n == 0 {
 		if T >= 0 && T < n {
-			return rarefyMean(r.c, T)
+			return rarefyMeanAt(r.c, T)
 		}
 		return math.NaN()
 	}

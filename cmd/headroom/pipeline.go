@@ -321,6 +321,13 @@ func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) e
 	if s.curve != "" {
 		outs.add(s.curve, writeCurve(est))
 	}
+	if s.plot != "" {
+		img, _, err := renderPlot(s.plot, s, est)
+		if err != nil {
+			return err
+		}
+		outs.add(s.plot, img)
+	}
 	if s.saveCounts != "" {
 		outs.add(s.saveCounts, writeCounts(samples))
 	}

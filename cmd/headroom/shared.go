@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"path/filepath"
 	"runtime"
 	"strconv"
 	"strings"
@@ -158,7 +159,9 @@ func (s *shared) check() error {
 		return usagef("--min-distinct must be 0 or more, not %v", s.minDistinct)
 	}
 	if s.plot != "" {
-		return usagef("--plot is not available yet in this version; use --curve FILE and plot the long-format curve")
+		if e := strings.ToLower(filepath.Ext(s.plot)); e != ".svg" && e != ".png" {
+			return usagef("--plot %s: use a file name ending in .svg or .png", s.plot)
+		}
 	}
 	if s.report != "" {
 		return usagef("--report is not available yet in this version")

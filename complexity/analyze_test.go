@@ -1,0 +1,177 @@
+package complexity
+
+import (
+	"math"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+func demoCounts(t *testing.T) Counts {
+	t.Helper()
+	c, err := FromMap(map[int64]int64{1: 6000, 2: 2100, 3: 900, 4: 420, 5: 210, 6: 120, 7: 70, 8: 40, 10: 30, 15: 12, 30: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return c
+}
+
+// sameFloats compares NaN-aware.
+func sameFloats(a, b []float64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if a[i] != b[i] && !(math.IsNaN(a[i]) && math.IsNaN(b[i])) {
+			return false
+		}
+	}
+	return true
+}
+
+func flat(r Report) []float64 {
+	v := []float64{r.Total, r.TotalLo, r.TotalHi, r.BacktestError, r.Saturation}
+	for _, p := range r.Predictions {
+		v = append(v, p.Distinct, p.Lo, p.Hi, p.DupFraction, p.Coverage)
+	}
+	for _, p := range r.Points {
+		v = append(v, p.Reads, p.Distinct, p.Lo, p.Hi)
+	}
+	return v
+}
+
+// TestAnalyzeDeterministic: the same seed gives identical reports for any
+// thread count (each replicate has its own random stream).
+func TestAnalyzeDeterministic(t *testing.T) {
+	c := demoCounts(t)
+	n := float64(c.Reads())
+	opt := Options{Depths: []float64{2 * n, 10 * n, 100 * n}, Bootstrap: 40, Seed: 9, Gates: NoGates(), Curve: []float64{n / 2, n, 5 * n}}
+	var first Report
+	for i, th := range []int{1, 2, 3, 8} {
+		opt.Threads = th
+		r := Analyze(c, opt)
+		if i == 0 {
+			first = r
+			continue
+		}
+		if !sameFloats(flat(r), flat(first)) || r.Method != first.Method || !reflect.DeepEqual(r.Notes, first.Notes) {
+			t.Errorf("threads %d differs from threads 1", th)
+		}
+	}
+	opt.Seed = 10
+	if sameFloats(flat(Analyze(c, opt)), flat(first)) {
+		t.Errorf("a different seed gave identical intervals")
+	}
+}
+
+// TestAnalyzeDegenerate: empty, single-unit and singleton-free samples are
+// not errors: values are missing or flat, and a note says why.
+func TestAnalyzeDegenerate(t *testing.T) {
+	one, _ := FromMap(map[int64]int64{5: 1})
+	sat, _ := FromMap(map[int64]int64{2: 10, 3: 4})
+	for _, c := range []struct {
+		name string
+		c    Counts
+		note string
+	}{
+		{"empty", Counts{}, "no reads"},
+		{"one", one, "one distinct unit"},
+		{"saturated", sat, "no singletons"},
+	} {
+		r := Analyze(c.c, Options{Depths: []float64{100, 1000}, Bootstrap: 10, Gates: NoGates()})
+		if !strings.Contains(strings.Join(r.Notes, ";"), c.note) {
+			t.Errorf("%s: notes %q, want %q", c.name, r.Notes, c.note)
+		}
+		for _, v := range flat(r) {
+			if math.IsInf(v, 0) {
+				t.Errorf("%s: infinite value in %v", c.name, flat(r))
+			}
+		}
+		if len(r.Predictions) != 2 {
+			t.Errorf("%s: %d predictions, want 2", c.name, len(r.Predictions))
+		}
+	}
+}
+
+// TestAnalyzeInvariants: predictions are at least the observed distinct
+// count above N, the duplicate fraction is 1 - distinct/reads, intervals
+// contain the point estimate, and the rarefied curve ends at D.
+func TestAnalyzeInvariants(t *testing.T) {
+	c := demoCounts(t)
+	n := float64(c.Reads())
+	r := Analyze(c, Options{Depths: []float64{n / 2, 2 * n, 10 * n}, Bootstrap: 50, Seed: 1, Threads: 2, Gates: NoGates(), Curve: []float64{n / 10, n, 3 * n}})
+	for _, p := range r.Predictions {
+		if p.Reads > n && p.Distinct < float64(c.Distinct()) {
+			t.Errorf("at %v: distinct %v below observed %d", p.Reads, p.Distinct, c.Distinct())
+		}
+		if math.Abs(p.DupFraction-(1-p.Distinct/p.Reads)) > 1e-12 {
+			t.Errorf("at %v: dup %v inconsistent", p.Reads, p.DupFraction)
+		}
+		if !(p.Lo <= p.Distinct && p.Distinct <= p.Hi) {
+			t.Errorf("at %v: interval [%v, %v] excludes %v", p.Reads, p.Lo, p.Hi, p.Distinct)
+		}
+	}
+	if got := r.Points[1]; got.Kind != KindObserved || math.Abs(got.Distinct-float64(c.Distinct())) > 1e-6 {
+		t.Errorf("observed point %+v, want distinct %d", got, c.Distinct())
+	}
+	if r.Points[0].Kind != KindRarefied || r.Points[2].Kind != KindExtrapolated {
+		t.Errorf("kinds %v %v", r.Points[0].Kind, r.Points[2].Kind)
+	}
+}
+
+// TestGates: a gate fails on the point estimate and passes otherwise.
+func TestGates(t *testing.T) {
+	c := demoCounts(t)
+	n := float64(c.Reads())
+	g := NoGates()
+	g.Target = 10 * n
+	g.MaxDup = 0.01
+	r := Analyze(c, Options{Depths: []float64{10 * n}, Gates: g})
+	if r.Verdict != VerdictFail || !strings.Contains(strings.Join(r.Notes, ";"), "dup") {
+		t.Errorf("max-dup 0.01: verdict %q notes %q, want fail", r.Verdict, r.Notes)
+	}
+	g.MaxDup = 0.999
+	if r := Analyze(c, Options{Depths: []float64{10 * n}, Gates: g}); r.Verdict != VerdictPass {
+		t.Errorf("max-dup 0.999: verdict %q notes %q, want pass", r.Verdict, r.Notes)
+	}
+	if r := Analyze(c, Options{Depths: []float64{10 * n}, Gates: NoGates()}); r.Verdict != VerdictNone {
+		t.Errorf("no gates: verdict %q", r.Verdict)
+	}
+}
+
+// TestInverse: inverse queries invert the curve, and unreachable targets
+// are answers, not errors.
+func TestInverse(t *testing.T) {
+	c := demoCounts(t)
+	n := float64(c.Reads())
+	m, _, err := extrapolate(c, 1000*n)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cv := Curve{Counts: c, Model: m}
+	want := cv.Distinct(7 * n)
+	got := cv.ReadsForDistinct(want, 1000*n)
+	if !got.Reachable || math.Abs(got.Reads-7*n) > 1+1e-6*n {
+		t.Errorf("ReadsForDistinct(%v) = %+v, want %v", want, got, 7*n)
+	}
+	if lim, ok := m.Limit(); ok {
+		if r := cv.ReadsForDistinct(lim*1.01, 1000*n); r.Reachable {
+			t.Errorf("beyond the limit %v: %+v, want unreachable", lim, r)
+		}
+	}
+	d := cv.DupFraction(3 * n)
+	if r := cv.ReadsForDupFraction(d, 1000*n); !r.Reachable || math.Abs(r.Reads-3*n) > 1+1e-6*n {
+		t.Errorf("ReadsForDupFraction(%v) = %+v, want %v", d, r, 3*n)
+	}
+	cov := cv.Coverage(5 * n)
+	if r := cv.ReadsForCoverage(cov, 1000*n); !r.Reachable || math.Abs(r.Reads-5*n) > 1+1e-4*n {
+		t.Errorf("ReadsForCoverage(%v) = %+v, want %v", cov, r, 5*n)
+	}
+	y := cv.MarginalYield(4 * n)
+	if r := cv.ReadsForMarginalYield(y, 1000*n); !r.Reachable || math.Abs(r.Reads-4*n)/n > 1e-3 {
+		t.Errorf("ReadsForMarginalYield(%v) = %+v, want %v", y, r, 4*n)
+	}
+	if r := cv.ReadsForCoverage(1.5, 1000*n); r.Reachable {
+		t.Errorf("coverage 1.5 reachable: %+v", r)
+	}
+}
