@@ -77,6 +77,8 @@ type sampleInput struct {
 type runInfo struct {
 	command string   // subcommand name
 	inputs  []string // input files as given
+	// settings are the subcommand's own flags worth showing in a report.
+	settings []reportKV
 }
 
 // estimated is one sample after estimation.
@@ -327,6 +329,13 @@ func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) e
 			return err
 		}
 		outs.add(s.plot, img)
+	}
+	if s.report != "" {
+		page, err := renderReport(s, info, est)
+		if err != nil {
+			return err
+		}
+		outs.add(s.report, page)
 	}
 	if s.saveCounts != "" {
 		outs.add(s.saveCounts, writeCounts(samples))

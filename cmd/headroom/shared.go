@@ -163,9 +163,6 @@ func (s *shared) check() error {
 			return usagef("--plot %s: use a file name ending in .svg or .png", s.plot)
 		}
 	}
-	if s.report != "" {
-		return usagef("--report is not available yet in this version")
-	}
 	switch s.progress {
 	case "auto", "always", "never":
 	default:

@@ -1,0 +1,123 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/xml"
+	"image/png"
+	"io"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"testing"
+	"time"
+)
+
+// TestReportSelfContained: the report has no external assets or scripts
+// and holds every sample and its verdict.
+func TestReportSelfContained(t *testing.T) {
+	dir := t.TempDir()
+	rep := filepath.Join(dir, "r.html")
+	code, _, stderr := runCLI(t, "", "counts", "--bootstrap", "20", "--report", rep, "--max-dup", "0.8", demoCounts)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	b, err := os.ReadFile(rep)
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(b)
+	for _, bad := range []string{"<script", "src=\"http", "href=\"http", "@import", "url("} {
+		if strings.Contains(page, bad) {
+			t.Errorf("report contains %q: not self-contained", bad)
+		}
+	}
+	for _, want := range []string{"<svg", "LVC-WGS-01", "LVC-CHIP-06", "Caution", "accredited QC rules", "Good IJ, Toulmin GH (1956)"} {
+		if !strings.Contains(page, want) {
+			t.Errorf("report lacks %q", want)
+		}
+	}
+}
+
+// TestReportInBrowser renders the report in headless Chromium (Debian's
+// chromium package), checks that the rendered page text names every
+// sample with its verdict, and takes a screenshot. Skips when Chromium is
+// not installed; CI installs it.
+func TestReportInBrowser(t *testing.T) {
+	bin, err := exec.LookPath("chromium")
+	if err != nil {
+		t.Skip("chromium not installed (apt-get install chromium); skipping the browser rendering check")
+	}
+	dir := t.TempDir()
+	rep := filepath.Join(dir, "r.html")
+	code, out, stderr := runCLI(t, "", "counts", "--bootstrap", "20", "--report", rep, "--max-dup", "0.8", demoCounts)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	flags := []string{"--headless", "--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-background-networking",
+		"--disable-component-update", "--disable-sync", "--user-data-dir=" + filepath.Join(dir, "profile")}
+	ctx, cancel := context.WithTimeout(context.Background(), 90*time.Second)
+	defer cancel()
+	dom, err := exec.CommandContext(ctx, bin, append(flags, "--dump-dom", "file://"+rep)...).Output()
+	if err != nil {
+		t.Fatalf("chromium --dump-dom: %v", err)
+	}
+	// Each summary row of the rendered page: sample then verdict cell.
+	rows := regexp.MustCompile(`<tr><td class="l">([^<]+)</td><td class="v [a-z]+">([a-z—]+)</td>`).FindAllSubmatch(dom, -1)
+	got := map[string]string{}
+	for _, r := range rows {
+		got[string(r[1])] = string(r[2])
+	}
+	for _, line := range strings.Split(strings.TrimSpace(out), "\n")[1:] {
+		f := strings.Split(line, "\t")
+		name, verdict := f[0], f[14]
+		if got[name] != verdict {
+			t.Errorf("rendered page: sample %s verdict %q, want %q", name, got[name], verdict)
+		}
+	}
+	shot := filepath.Join(dir, "shot.png")
+	cmd := exec.CommandContext(ctx, bin, append(flags, "--window-size=1280,2000", "--screenshot="+shot, "file://"+rep)...)
+	cmd.Dir = dir
+	if err := cmd.Run(); err != nil {
+		t.Fatalf("chromium --screenshot: %v", err)
+	}
+	png, err := os.ReadFile(shot)
+	if err != nil || len(png) < 10000 || !bytes.HasPrefix(png, []byte("\x89PNG")) {
+		t.Errorf("screenshot missing or too small (%d bytes, %v)", len(png), err)
+	}
+}
+
+// TestPlotFiles: --plot writes a well-formed SVG (XML) or a decodable PNG,
+// and refuses other extensions as a usage error.
+func TestPlotFiles(t *testing.T) {
+	dir := t.TempDir()
+	svg := filepath.Join(dir, "p.svg")
+	pngf := filepath.Join(dir, "p.png")
+	for _, p := range []string{svg, pngf} {
+		if code, _, stderr := runCLI(t, "", "counts", "--bootstrap", "10", "--target", "20M", "--plot", p, demoCounts); code != 0 {
+			t.Fatalf("%s: exit %d %s", p, code, stderr)
+		}
+	}
+	b, _ := os.ReadFile(svg)
+	d := xml.NewDecoder(bytes.NewReader(b))
+	for {
+		_, err := d.Token()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.Fatalf("SVG is not well-formed XML: %v", err)
+		}
+	}
+	f, _ := os.Open(pngf)
+	defer f.Close()
+	img, err := png.Decode(f)
+	if err != nil || img.Bounds().Dx() < 800 {
+		t.Errorf("PNG: %v, bounds %v", err, img)
+	}
+	if code, _, _ := runCLI(t, "", "counts", "--plot", filepath.Join(dir, "p.gif"), demoCounts); code != exitUsage {
+		t.Errorf(".gif: exit %d, want 2", code)
+	}
+}
