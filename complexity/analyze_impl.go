@@ -3,7 +3,6 @@ package complexity
 import (
 	"fmt"
 	"math"
-	"sort"
 	"sync"
 )
 
@@ -279,8 +278,6 @@ func backtest(c Counts, method string, m Model, seed uint64) float64 {
 // constantModel is the curve of a saturated sample: no new units.
 type constantModel float64
 
-func (k constantModel) Name() string              { return "saturated" }
-func (k constantModel) Distinct(float64) float64  { return float64(k) }
-func (k constantModel) Limit() (float64, bool)    { return float64(k), true }
-
-var _ = sort.Float64s
+func (k constantModel) Name() string             { return "saturated" }
+func (k constantModel) Distinct(float64) float64 { return float64(k) }
+func (k constantModel) Limit() (float64, bool)   { return float64(k), true }
