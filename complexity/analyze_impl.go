@@ -53,6 +53,14 @@ func Analyze(c Counts, opt Options) Report {
 		r.Notes = append(r.Notes, "no reads: nothing to estimate")
 	case d < 2:
 		r.Notes = append(r.Notes, "only one distinct unit: too little to extrapolate from")
+	case SingletonsDepleted(c):
+		// Singletons removed or absorbed upstream: fit without them.
+		if m, err := fitTrunc2(c, nil); err == nil {
+			cv.Model, r.Method = m, m.Name()
+			r.Notes = append(r.Notes, "singletons look removed upstream: extrapolation ignores them (nb-trunc2) and predictions include the units they hid")
+		} else {
+			r.Notes = append(r.Notes, "singletons look removed upstream and too few classes remain to fit without them")
+		}
 	case c.Units(1) == 0:
 		r.Notes = append(r.Notes, "no singletons: every unit seen at least twice, the sample looks saturated; extrapolation assumes nothing new remains")
 		r.Method = "saturated"
@@ -170,7 +178,7 @@ func Analyze(c Counts, opt Options) Report {
 		r.Points = append(r.Points, CurvePoint{Reads: t, Distinct: point[i], Lo: lo[i], Hi: hi[i], Kind: kind})
 	}
 
-	if cv.Model != nil && r.Method != "saturated" {
+	if _, trunc := cv.Model.(*trunc2Model); cv.Model != nil && r.Method != "saturated" && !trunc {
 		r.BacktestError = backtest(c, r.Method, cv.Model, opt.Seed)
 	}
 
@@ -210,7 +218,13 @@ func bootstrap(c Counts, m Model, method string, maxT float64, pts []float64, B 
 				rng := newRand(seed, uint64(b))
 				rc := Resample(c, rng)
 				v := make([]float64, len(pts))
-				rm, err := refit(method, rc, maxT, m)
+				var rm Model
+				var err error
+				if t2, ok := m.(*trunc2Model); ok {
+					rm, err = fitTrunc2(rc, []float64{math.Log(t2.k), math.Log(t2.theta)})
+				} else {
+					rm, err = refit(method, rc, maxT, m)
+				}
 				reps.limits[b] = missing
 				if err != nil {
 					for i := range v {

@@ -10,8 +10,8 @@ import "math"
 //
 // with n reads, f1 singletons and f2 doubletons; when f2 = 0 the bracket
 // is (n-1)(f1-1) / ((n-1)(f1-1) + 2) (Chao & Jost 2012, the estimator
-// and its f2 = 0 form). C_n = 1 when f1 = 0. It returns NaN for an
-// empty table.
+// and its f2 = 0 form). C_n = 1 when f1 = 0, and also, by the f2 = 0 form,
+// when f1 = 1 and f2 = 0. It returns NaN for an empty table.
 //
 // References:
 //

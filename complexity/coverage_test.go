@@ -1,6 +1,7 @@
 package complexity
 
 import (
+	"fmt"
 	"math"
 	"testing"
 )
@@ -115,4 +116,20 @@ func TestCoverageConsistency(t *testing.T) {
 			}
 		}
 	}
+}
+
+// ExampleCoverageAt shows the coverage of the table {1:3, 2:1, 4:1}
+// (9 reads) rarefied, at the sample and extrapolated (see TestCoverageHand
+// for the arithmetic).
+func ExampleCoverageAt() {
+	c, _ := FromMap(map[int64]int64{1: 3, 2: 1, 4: 1})
+	for _, t := range []float64{2, 9, 12} {
+		fmt.Printf("C(%v) = %.4f\n", t, CoverageAt(c, t))
+	}
+	fmt.Printf("next read new: %.4f\n", MarginalYield(c))
+	// Output:
+	// C(2) = 0.3413
+	// C(9) = 0.6923
+	// C(12) = 0.7580
+	// next read new: 0.3077
 }

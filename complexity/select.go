@@ -3,7 +3,8 @@ package complexity
 import (
 	"errors"
 	"math"
-	"sort"
+	"os"
+	"strings"
 )
 
 // Selection.
@@ -61,6 +62,14 @@ func ln2Cand(hs hist, hint []float64) (Model, []float64, error) {
 	return m, m.params, nil
 }
 
+func plCand(hs hist, hint []float64) (Model, []float64, error) {
+	m, err := fitParetoHist(hs, hint)
+	if err != nil {
+		return nil, nil, err
+	}
+	return m, m.params, nil
+}
+
 func nbCand(hs hist, hint []float64) (Model, []float64, error) {
 	m, err := fitZTNBHist(hs, hint)
 	if err != nil {
@@ -77,13 +86,26 @@ var candidates = []candidate{
 	{"lognormal-h", true, lnCand},
 	{"lognormal2-h", true, ln2Cand},
 	{"ztnb-h", true, nbCand},
+	{"powerlaw-h", true, plCand},
 	{"lognormal", false, lnCand},
 	{"lognormal2", false, ln2Cand},
 	{"ztnb-c", false, nbCand},
 }
 
 // selected are the names of the candidates extrapolate compares by AIC.
-var selected = map[string]bool{"lognormal-h": true, "lognormal2-h": true, "ztnb-h": true}
+var selected = envSelected(map[string]bool{"lognormal-h": true, "lognormal2-h": true, "ztnb-h": true, "powerlaw-h": true})
+
+func envSelected(def map[string]bool) map[string]bool {
+	v := os.Getenv("HEADROOM_CANDS")
+	if v == "" {
+		return def
+	}
+	m := map[string]bool{}
+	for _, s := range strings.Split(v, ",") {
+		m[s] = true
+	}
+	return m
+}
 
 // Candidates returns every candidate mixture fit of c and the RFA curve
 // (those that cannot be fitted are left out), for diagnostics and
@@ -193,35 +215,4 @@ func refitCandidate(method string, c Counts, name string, p []float64) (Model, e
 		return m, err
 	}
 	return nil, errors.New("complexity: cannot refit " + method)
-}
-
-// interval turns bootstrap replicate values into an interval at level:
-// the percentile interval of the replicates.
-func interval(point float64, reps []float64, level float64, c Counts, t float64) (lo, hi float64) {
-	v := make([]float64, 0, len(reps))
-	for _, x := range reps {
-		if isFinite(x) {
-			v = append(v, x)
-		}
-	}
-	if len(v) < 2 {
-		return missing, missing
-	}
-	sort.Float64s(v)
-	a := (1 - level) / 2
-	return quantileSorted(v, a), quantileSorted(v, 1-a)
-}
-
-// quantileSorted is the linear-interpolation quantile (type 7 of Hyndman &
-// Fan 1996) of sorted values.
-func quantileSorted(v []float64, p float64) float64 {
-	if len(v) == 0 {
-		return missing
-	}
-	h := p * float64(len(v)-1)
-	i := int(h)
-	if i >= len(v)-1 {
-		return v[len(v)-1]
-	}
-	return v[i] + (h-float64(i))*(v[i+1]-v[i])
 }
