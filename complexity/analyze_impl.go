@@ -55,11 +55,13 @@ func Analyze(c Counts, opt Options) Report {
 		r.Notes = append(r.Notes, "only one distinct unit: too little to extrapolate from")
 	case SingletonsDepleted(c):
 		// Singletons removed or absorbed upstream: fit without them.
-		if m, err := fitTrunc2(c, nil); err == nil {
+		if m, err := fitTrunc2(c, nil); err == nil && m.admissible(c, maxT) {
 			cv.Model, r.Method = m, m.Name()
 			r.Notes = append(r.Notes, "singletons look removed upstream: extrapolation ignores them (nb-trunc2) and predictions include the units they hid")
 		} else {
-			r.Notes = append(r.Notes, "singletons look removed upstream and too few classes remain to fit without them")
+			sm := NewShenModel(c)
+			cv.Model, r.Method = sm, sm.Name()
+			r.Notes = append(r.Notes, "singletons look removed upstream but no fit without them is admissible; "+sm.Name()+" used, its totals are lower bounds")
 		}
 	case c.Units(1) == 0:
 		r.Notes = append(r.Notes, "no singletons: every unit seen at least twice, the sample looks saturated; extrapolation assumes nothing new remains")
@@ -67,9 +69,16 @@ func Analyze(c Counts, opt Options) Report {
 		cv.Model = constantModel(float64(d))
 	default:
 		m, method, err := extrapolate(c, maxT)
-		if err != nil {
+		switch {
+		case err != nil:
 			r.Notes = append(r.Notes, "no admissible extrapolation: "+err.Error())
-		} else {
+		case !Admissible(m, c, maxT):
+			// A safety net under every selection rule: a curve that falls,
+			// bends upward or outgrows the reads is never reported.
+			sm := NewShenModel(c)
+			cv.Model, r.Method = sm, sm.Name()
+			r.Notes = append(r.Notes, "the fitted "+method+" curve was not admissible; fell back to "+sm.Name())
+		default:
 			cv.Model = m
 			r.Method = method
 		}

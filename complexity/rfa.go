@@ -229,8 +229,14 @@ func RFAApproximants(c Counts) []*RFA {
 // pole in between (a sign change of the continued fraction's denominator).
 // The curve is checked on a log-spaced grid of admissGrid points.
 func Admissible(m Model, c Counts, maxT float64) bool {
-	n := float64(c.Reads())
-	d := float64(c.Distinct())
+	return admissibleFrom(m, float64(c.Reads()), float64(c.Distinct()), maxT)
+}
+
+// admissibleFrom checks m as Admissible does, from the point (n, d).
+func admissibleFrom(m Model, n, d, maxT float64) bool {
+	if !(n > 0) {
+		return false
+	}
 	if !(maxT > n) {
 		maxT = 2 * n
 	}

@@ -20,13 +20,17 @@ import (
 //
 //	Distinct(tN) = U (1 − (1+tθ)^{-k}),
 //
-// bounded, with limit U. At the observed depth this exceeds the observed
+// bounded, with limit U. The reads of the removed singletons were
+// sequenced too, so the depth the fit describes is the observed reads plus
+// the U P(1) − f1 singletons missing from the table; t is measured from
+// that depth. At the observed depth the curve exceeds the observed
 // distinct count by the singletons the table is missing.
 //
 // Reference: Sampford (1955), Biometrika 42:58 (the truncated negative
 // binomial; truncating below 2 instead of below 1 is our use of it).
 type trunc2Model struct {
-	n, u     float64
+	n        float64 // the depth the fit describes (observed + missing singletons)
+	u        float64 // units in the library
 	k, theta float64
 }
 
@@ -108,5 +112,16 @@ func fitTrunc2(c Counts, hint []float64) (*trunc2Model, error) {
 	k, th := math.Exp(best[0]), math.Exp(best[1])
 	l1t := math.Log1p(th)
 	norm := 1 - math.Exp(-k*l1t) - k*th*math.Exp(-(k+1)*l1t)
-	return &trunc2Model{n: float64(c.Reads()), u: d2 / norm, k: k, theta: th}, nil
+	u := d2 / norm
+	p1 := k * th * math.Exp(-(k+1)*l1t)
+	missingOnes := math.Max(0, u*p1-float64(c.Units(1)))
+	return &trunc2Model{n: float64(c.Reads()) + missingOnes, u: u, k: k, theta: th}, nil
+}
+
+// admissible checks the curve from the depth it describes (observed reads
+// plus the missing singletons), where it must hold at least the observed
+// distinct units.
+func (m *trunc2Model) admissible(c Counts, maxT float64) bool {
+	d0 := m.Distinct(m.n)
+	return d0 >= float64(c.Distinct()) && admissibleFrom(m, m.n, d0, math.Max(maxT, 2*m.n))
 }
