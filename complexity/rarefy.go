@@ -438,3 +438,9 @@ func neumaierAdd(s, c, x float64) (float64, float64) {
 	}
 	return t, c
 }
+
+// RarefyMean returns the expected distinct units in a subsample of t reads
+// drawn without replacement, as Rarefy's mean but without the variance
+// (much cheaper for many depths), for real t in [0, N] by the
+// gamma-function continuation. It returns NaN outside [0, N].
+func RarefyMean(c Counts, t float64) float64 { return rarefyMeanAt(c, t) }

@@ -79,6 +79,12 @@ type runInfo struct {
 	inputs  []string // input files as given
 	// settings are the subcommand's own flags worth showing in a report.
 	settings []reportKV
+	// notes are about the whole run (not one sample): shown once in the
+	// report and as the top-level "notes" of the JSON summary.
+	notes []string
+	// extra are further output files of the subcommand, written atomically
+	// together with the others (all or nothing).
+	extra []pendingFile
 }
 
 // estimated is one sample after estimation.
@@ -251,10 +257,15 @@ func writeSummaryTSV(s *shared, samples []estimated) []byte {
 }
 
 // writeSummaryJSON renders the summary document (DESIGN.md, JSON).
-func writeSummaryJSON(s *shared, samples []estimated) []byte {
+func writeSummaryJSON(s *shared, info runInfo, samples []estimated) []byte {
 	var b bytes.Buffer
 	v, _ := json.Marshal(toolVersion())
-	fmt.Fprintf(&b, "{\"tool\":\"headroom\",\"version\":%s,\"samples\":[", v)
+	fmt.Fprintf(&b, "{\"tool\":\"headroom\",\"version\":%s,", v)
+	if len(info.notes) > 0 {
+		n, _ := json.Marshal(info.notes)
+		fmt.Fprintf(&b, "\"notes\":%s,", n)
+	}
+	b.WriteString("\"samples\":[")
 	keys := summaryKeys(extraKeys(samples))
 	for i, e := range samples {
 		if i > 0 {
@@ -315,7 +326,7 @@ func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) e
 	var outs outputs
 	var summary []byte
 	if s.format == "json" {
-		summary = writeSummaryJSON(s, est)
+		summary = writeSummaryJSON(s, info, est)
 	} else {
 		summary = writeSummaryTSV(s, est)
 	}
@@ -340,6 +351,7 @@ func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) e
 	if s.saveCounts != "" {
 		outs.add(s.saveCounts, writeCounts(samples))
 	}
+	outs.files = append(outs.files, info.extra...)
 	if err := outs.commit(a.stdout); err != nil {
 		return err
 	}

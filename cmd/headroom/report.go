@@ -64,6 +64,11 @@ ul.notes li { margin-bottom: 0.3em; }
 {{if .PlotNote}}<p class="small">{{.PlotNote}}.</p>{{end}}
 <p class="small">Solid: exact rarefaction below the observed depth (dot). Dashed: extrapolation. Shaded: the {{.Level}} interval.</p>
 
+{{if .RunNotes}}<h2>Notes on the whole run</h2>
+<ul class="notes">
+{{range .RunNotes}}<li>{{.}}</li>
+{{end}}</ul>
+{{end}}
 <h2>Notes per sample</h2>
 <ul class="notes">
 {{range .Notes}}<li><strong>{{.Name}}</strong> ({{.Verdict}}): {{.Text}}</li>
@@ -195,7 +200,7 @@ func renderReport(s *shared, info runInfo, est []estimated) ([]byte, error) {
 		"Title": title, "Count": len(est), "Command": info.command, "Version": toolVersion(),
 		"TargetText": target, "Tally": tally, "Header": head, "Rows": rows,
 		"Plot": template.HTML(plotSVG), "PlotNote": note, "Level": fmt.Sprintf("%.0f%%", s.level*100),
-		"Notes": notes, "Settings": settings,
+		"Notes": notes, "Settings": settings, "RunNotes": info.notes,
 	}
 	t, err := template.New("report").Parse(reportTemplate)
 	if err != nil {
