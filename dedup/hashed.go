@@ -1,0 +1,263 @@
+package dedup
+
+import (
+	"headroom/reads"
+)
+
+// Hashed counts input in any order in compact per-library hash tables.
+type Hashed struct {
+	opt   Options
+	shift uint
+	tabs  []*table
+	libs  []libAcc
+	bytes int64 // current table memory, all libraries
+
+	// PeakBytes is the largest table memory reached.
+	PeakBytes int64
+}
+
+// table is one library's molecules: open addressing with linear probing
+// on the 64-bit key hash (0 marks an empty slot), split into segments
+// that grow one at a time, so a doubling never holds two copies of the
+// whole table (peak memory stays near the steady state). A slot is the
+// key (8 bytes) and a saturating 1-byte count; counts from 255 on live in
+// over. When read names carry flow-cell spots, spot holds each molecule's
+// first spot and multi the spots of its later reads, so memory for spots
+// grows with duplicates, not with molecules.
+type table struct {
+	segs  [segments]segment
+	spots bool
+	over  map[uint64]int64
+	multi map[uint64][]reads.Spot
+	extra int64 // estimated bytes of over and multi
+}
+
+type segment struct {
+	keys []uint64
+	cnt  []uint8
+	spot []reads.Spot
+	used int
+}
+
+const (
+	// segments is the number of independently growing parts of a table;
+	// the low 8 bits of a key choose its segment and the bits above them
+	// its slot. Subsampling looks at the top bits, so it thins every
+	// segment alike.
+	segments     = 256
+	segmentBits  = 8
+	initialSlots = 16 // per segment
+	// maxLoadNum/maxLoadDen is the largest fill before a segment doubles:
+	// linear probing stays short below 80 %, and the slots per molecule
+	// stay between 1.25 and 2.5, i.e. 11 to 23 bytes per molecule (about
+	// 15 on average, the segments' fills being staggered).
+	maxLoadNum, maxLoadDen = 4, 5
+	mapEntryBytes          = 48 // rough Go map cost per entry
+)
+
+// NewHashed returns a counter for input in any order.
+func NewHashed(opt Options) *Hashed { return &Hashed{opt: opt} }
+
+// SetLeadClip implements Counter (no-op).
+func (h *Hashed) SetLeadClip(int64) {}
+
+// Advance implements Counter (no-op).
+func (h *Hashed) Advance(int32, int64) {}
+
+// Shift returns the current subsampling shift.
+func (h *Hashed) Shift() uint { return h.shift }
+
+func newTable() *table {
+	t := &table{over: map[uint64]int64{}, multi: map[uint64][]reads.Spot{}}
+	for i := range t.segs {
+		t.segs[i].keys = make([]uint64, initialSlots)
+		t.segs[i].cnt = make([]uint8, initialSlots)
+	}
+	return t
+}
+
+func (t *table) slotBytes() int64 {
+	b := int64(9)
+	if t.spots {
+		b += 8
+	}
+	return b
+}
+
+func (t *table) size() int64 {
+	var n int64
+	for i := range t.segs {
+		n += int64(len(t.segs[i].keys))
+	}
+	return n*t.slotBytes() + t.extra
+}
+
+func (h *Hashed) kept(key uint64) bool { return h.shift == 0 || key>>(64-h.shift) == 0 }
+
+// Add implements Counter.
+func (h *Hashed) Add(f reads.Fragment) {
+	for len(h.tabs) <= f.Library {
+		t := newTable()
+		h.tabs = append(h.tabs, t)
+		h.bytes += t.size()
+	}
+	h.libs = grow(h.libs, f.Library)
+	h.libs[f.Library].fragments++
+	if !h.kept(f.Key) {
+		return
+	}
+	t := h.tabs[f.Library]
+	if f.Spot != 0 && !t.spots && h.opt.OpticalDistance > 0 {
+		h.bytes -= t.size()
+		t.spots = true
+		for i := range t.segs {
+			t.segs[i].spot = make([]reads.Spot, len(t.segs[i].keys))
+		}
+		h.bytes += t.size()
+	}
+	sg := &t.segs[f.Key&(segments-1)]
+	mask := uint64(len(sg.keys) - 1)
+	i := (f.Key >> segmentBits) & mask
+	for {
+		k := sg.keys[i]
+		if k == f.Key {
+			h.again(t, sg, i, f)
+			return
+		}
+		if k == 0 {
+			break
+		}
+		i = (i + 1) & mask
+	}
+	sg.keys[i] = f.Key
+	sg.cnt[i] = 1
+	if sg.spot != nil {
+		sg.spot[i] = f.Spot
+	}
+	sg.used++
+	if sg.used*maxLoadDen > len(sg.keys)*maxLoadNum {
+		h.makeRoom(t, sg)
+	}
+	if h.bytes > h.PeakBytes {
+		h.PeakBytes = h.bytes
+	}
+}
+
+// again counts another read of the molecule in slot i of sg.
+func (h *Hashed) again(t *table, sg *segment, i uint64, f reads.Fragment) {
+	switch c := sg.cnt[i]; {
+	case c < 254:
+		sg.cnt[i]++
+	case c == 254:
+		sg.cnt[i] = 255
+		t.over[f.Key] = 255
+		t.extra += mapEntryBytes
+		h.bytes += mapEntryBytes
+	default:
+		t.over[f.Key]++
+	}
+	if f.Spot != 0 && sg.spot != nil {
+		s, ok := t.multi[f.Key]
+		add := int64(8)
+		if !ok {
+			add += mapEntryBytes
+		}
+		t.multi[f.Key] = append(s, f.Spot)
+		t.extra += add
+		h.bytes += add
+	}
+}
+
+// makeRoom doubles segment sg of t, or, when that would pass the memory
+// budget, halves the hash range kept until sg is below its maximum load.
+func (h *Hashed) makeRoom(t *table, sg *segment) {
+	for sg.used*maxLoadDen > len(sg.keys)*maxLoadNum {
+		grown := h.bytes + int64(len(sg.keys))*t.slotBytes()
+		if h.opt.MemoryBudget <= 0 || grown <= h.opt.MemoryBudget || h.shift >= 63 {
+			h.rehash(t, sg, 2*len(sg.keys))
+			return
+		}
+		h.shift++
+		for _, u := range h.tabs {
+			for i := range u.segs {
+				h.rehash(u, &u.segs[i], len(u.segs[i].keys))
+			}
+		}
+	}
+}
+
+// rehash rebuilds segment sg of t with the given number of slots, dropping
+// molecules the current shift no longer keeps.
+func (h *Hashed) rehash(t *table, sg *segment, slots int) {
+	old := int64(len(sg.keys)) * t.slotBytes()
+	keys, cnt, spot := sg.keys, sg.cnt, sg.spot
+	sg.keys = make([]uint64, slots)
+	sg.cnt = make([]uint8, slots)
+	if spot != nil {
+		sg.spot = make([]reads.Spot, slots)
+	}
+	sg.used = 0
+	mask := uint64(slots - 1)
+	for j, k := range keys {
+		if k == 0 {
+			continue
+		}
+		if !h.kept(k) {
+			if cnt[j] == 255 {
+				delete(t.over, k)
+				t.extra -= mapEntryBytes
+				h.bytes -= mapEntryBytes
+			}
+			if s, ok := t.multi[k]; ok {
+				b := mapEntryBytes + 8*int64(len(s))
+				t.extra -= b
+				h.bytes -= b
+				delete(t.multi, k)
+			}
+			continue
+		}
+		i := (k >> segmentBits) & mask
+		for sg.keys[i] != 0 {
+			i = (i + 1) & mask
+		}
+		sg.keys[i], sg.cnt[i] = k, cnt[j]
+		if spot != nil {
+			sg.spot[i] = spot[j]
+		}
+		sg.used++
+	}
+	h.bytes += int64(slots)*t.slotBytes() - old
+	if h.bytes > h.PeakBytes {
+		h.PeakBytes = h.bytes
+	}
+}
+
+// Results implements Counter.
+func (h *Hashed) Results(n int) []Result {
+	h.libs = grow(h.libs, n-1)
+	var spots []reads.Spot
+	for li, t := range h.tabs {
+		l := &h.libs[li]
+		for s := range t.segs {
+			sg := &t.segs[s]
+			for i, k := range sg.keys {
+				if k == 0 {
+					continue
+				}
+				c := int64(sg.cnt[i])
+				if c == 255 {
+					c = t.over[k]
+				}
+				spots = spots[:0]
+				if sg.spot != nil {
+					if sg.spot[i] != 0 {
+						spots = append(spots, sg.spot[i])
+					}
+					spots = append(spots, t.multi[k]...)
+				}
+				l.count(c, spots, h.opt.OpticalDistance)
+			}
+		}
+	}
+	return results(h.libs, n, h.shift)
+}

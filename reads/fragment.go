@@ -1,0 +1,235 @@
+package reads
+
+import (
+	"bytes"
+	"encoding/binary"
+	"math/bits"
+)
+
+// Fragment is one sequenced fragment as duplicate counting sees it: the
+// hash of its molecule key, the library it belongs to, the flow-cell spot
+// of the read that represents it, and (for coordinate-sorted streaming)
+// the rightmost end of its key.
+type Fragment struct {
+	Library int
+	Key     uint64 // 64-bit hash of the molecule key; never 0
+	Spot    Spot
+	// LastRef and LastPos are the reference and unclipped 5' coordinate of
+	// the key's rightmost end: a record of the same molecule cannot start
+	// after LastPos plus the longest leading clip.
+	LastRef int32
+	LastPos int64
+}
+
+// KeyOptions say how records become molecule keys. The zero value counts
+// every primary mapped record, with UMIs from RX only.
+type KeyOptions struct {
+	// MinMapQ skips records with a lower mapping quality.
+	MinMapQ int
+	// UMIFromName takes the UMI from the read name (NameUMI) when a record
+	// has no RX tag.
+	UMIFromName bool
+	// NoUMI ignores UMIs altogether, RX tags included.
+	NoUMI bool
+	// KeyBases is the number of leading bases of each FASTQ mate in the
+	// key; 0 means the whole read.
+	KeyBases int
+	// OpticalNames parses flow-cell spots from read names (ParseSpot).
+	OpticalNames bool
+}
+
+// Keyer turns alignment records and FASTQ records into fragments,
+// applying the counting rules of DESIGN.md "Reads: what counts as one
+// molecule". It keeps tallies for the summary and its notes.
+type Keyer struct {
+	Opt KeyOptions
+
+	// Tallies.
+	Skipped     int64   // records not starting a fragment (flags, MAPQ, second mates)
+	PairsNoMC   int64   // pairs whose mate end was taken as PNEXT (no MC tag)
+	NoMC        []int64 // PairsNoMC by library
+	MaxLeadClip int64   // longest leading clip (S+H) of a forward read seen
+
+	mc []CigarOp
+}
+
+// Skip flags: unmapped, secondary, QC-failed, supplementary (DESIGN.md).
+// The duplicate flag 0x400 is deliberately not among them.
+const skipFlags = FlagUnmapped | FlagSecondary | FlagQCFail | FlagSupplementary
+
+// Alignment returns the fragment rec starts, if any: rec must be primary,
+// mapped, not QC-failed, with MAPQ at least MinMapQ; of a pair with both
+// mates mapped only the first-in-pair record starts the fragment, whose
+// key holds both unclipped ends as an unordered pair; a record whose mate
+// is unmapped is a single-end fragment.
+func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
+	if rec.Flags&skipFlags != 0 || int(rec.MapQ) < k.Opt.MinMapQ || rec.Ref < 0 || rec.Pos < 0 {
+		k.Skipped++
+		return Fragment{}, false
+	}
+	rev := rec.Flags&FlagReverse != 0
+	end := Unclipped5(rec.Pos, rec.Cigar, rev)
+	if !rev {
+		if c := int64(rec.Pos) - end; c > k.MaxLeadClip {
+			k.MaxLeadClip = c
+		}
+	}
+	umi := rec.RX
+	if umi == nil && k.Opt.UMIFromName {
+		umi = NameUMI(rec.Name)
+	}
+	if k.Opt.NoUMI {
+		umi = nil
+	}
+	f := Fragment{Library: lib}
+	if k.Opt.OpticalNames {
+		f.Spot = ParseSpot(rec.Name)
+	}
+	paired := rec.Flags&FlagPaired != 0 && rec.Flags&FlagMateUnmapped == 0 && rec.MateRef >= 0 && rec.MatePos >= 0
+	if !paired {
+		f.Key = finish(mix(mix(mix(mix(seed1, uint64(lib)), uint64(rec.Ref)), uint64(end)), strand(rev)), umi)
+		f.LastRef, f.LastPos = rec.Ref, end
+		return f, true
+	}
+	if rec.Flags&FlagRead2 != 0 && rec.Flags&FlagRead1 == 0 {
+		k.Skipped++
+		return Fragment{}, false
+	}
+	mrev := rec.Flags&FlagMateReverse != 0
+	mend := int64(rec.MatePos)
+	if rec.MC != nil {
+		var err error
+		k.mc, err = ParseCigar(k.mc, rec.MC)
+		if err == nil {
+			mend = Unclipped5(rec.MatePos, k.mc, mrev)
+		} else {
+			k.noMC(lib)
+		}
+	} else {
+		k.noMC(lib)
+	}
+	a := end5{rec.Ref, end, rev}
+	b := end5{rec.MateRef, mend, mrev}
+	if b.less(a) {
+		a, b = b, a
+	}
+	h := mix(mix(seed2, uint64(lib)), uint64(a.ref))
+	h = mix(mix(mix(h, uint64(a.pos)), strand(a.rev)), uint64(b.ref))
+	h = mix(mix(h, uint64(b.pos)), strand(b.rev))
+	f.Key = finish(h, umi)
+	f.LastRef, f.LastPos = b.ref, b.pos
+	return f, true
+}
+
+func (k *Keyer) noMC(lib int) {
+	k.PairsNoMC++
+	for len(k.NoMC) <= lib {
+		k.NoMC = append(k.NoMC, 0)
+	}
+	k.NoMC[lib]++
+}
+
+type end5 struct {
+	ref int32
+	pos int64
+	rev bool
+}
+
+func (e end5) less(o end5) bool {
+	if e.ref != o.ref {
+		return e.ref < o.ref
+	}
+	if e.pos != o.pos {
+		return e.pos < o.pos
+	}
+	return !e.rev && o.rev
+}
+
+// FASTQ returns the fragment of a single read (r2 nil) or a read pair:
+// the key is the leading KeyBases bases of each mate, the mates taken as
+// an unordered pair (a copy read from the other strand swaps R1 and R2,
+// as an alignment key's unordered ends do), plus the UMI.
+func (k *Keyer) FASTQ(r1, r2 *FASTQRecord, lib int) Fragment {
+	f := Fragment{Library: lib}
+	if k.Opt.OpticalNames {
+		f.Spot = ParseSpot(r1.Name)
+	}
+	umi := CommentUMI(r1.Comment)
+	if umi == nil && k.Opt.UMIFromName {
+		umi = NameUMI(r1.Name)
+	}
+	if k.Opt.NoUMI {
+		umi = nil
+	}
+	s1 := prefix(r1.Seq, k.Opt.KeyBases)
+	if r2 == nil {
+		f.Key = finish(hashBytes(mix(seed3, uint64(lib)), s1), umi)
+		return f
+	}
+	s2 := prefix(r2.Seq, k.Opt.KeyBases)
+	if bytes.Compare(s2, s1) < 0 {
+		s1, s2 = s2, s1
+	}
+	h := hashBytes(mix(seed4, uint64(lib)), s1)
+	f.Key = finish(hashBytes(h, s2), umi)
+	return f
+}
+
+func prefix(s []byte, n int) []byte {
+	if n > 0 && len(s) > n {
+		return s[:n]
+	}
+	return s
+}
+
+// The key hash: a multiply-rotate mix per 64-bit word (constants of
+// xxHash64, Collet 2012) and the MurmurHash3 64-bit finaliser (Appleby
+// 2011) for avalanche. Deterministic across runs and platforms, which
+// hash subsampling needs; maphash is randomly seeded per process.
+const (
+	prime1 = 0x9E3779B185EBCA87
+	prime2 = 0xC2B2AE3D27D4EB4F
+	seed1  = 0x243F6A8885A308D3 // single-end alignment keys
+	seed2  = 0x13198A2E03707344 // paired alignment keys
+	seed3  = 0xA4093822299F31D0 // single FASTQ keys
+	seed4  = 0x082EFA98EC4E6C89 // paired FASTQ keys
+)
+
+func mix(h, v uint64) uint64 {
+	h ^= bits.RotateLeft64(v*prime2, 31) * prime1
+	return bits.RotateLeft64(h, 27)*prime1 + 0x85EBCA77C2B2AE63
+}
+
+func strand(rev bool) uint64 {
+	if rev {
+		return 1
+	}
+	return 0
+}
+
+func hashBytes(h uint64, b []byte) uint64 {
+	h = mix(h, uint64(len(b)))
+	for len(b) >= 8 {
+		h = mix(h, binary.LittleEndian.Uint64(b))
+		b = b[8:]
+	}
+	if len(b) > 0 {
+		var t [8]byte
+		copy(t[:], b)
+		h = mix(h, binary.LittleEndian.Uint64(t[:]))
+	}
+	return h
+}
+
+func finish(h uint64, umi []byte) uint64 {
+	h = hashBytes(h, umi)
+	h ^= h >> 33
+	h *= 0xff51afd7ed558ccd
+	h ^= h >> 33
+	h *= 0xc4ceb9fe1a85ec53
+	h ^= h >> 33
+	if h == 0 {
+		h = 1
+	}
+	return h
+}

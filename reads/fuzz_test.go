@@ -1,0 +1,189 @@
+package reads
+
+import (
+	"bytes"
+	"encoding/binary"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"testing"
+)
+
+// Native fuzz tests of every parser. Seed corpora live in
+// testdata/fuzz/<FuzzName>/ (written from the fixtures of
+// ../testdata/reads by TestWriteFuzzCorpus with HEADROOM_WRITE_CORPUS=1).
+// Run one with: go test ./reads -run '^$' -fuzz FuzzDecodeBAM -fuzztime 60s
+
+func FuzzDecodeBAM(f *testing.F) {
+	f.Add(make([]byte, 32))
+	f.Fuzz(func(t *testing.T, b []byte) {
+		var rec Record
+		if err := DecodeBAM(b, 3, &rec); err != nil {
+			return
+		}
+		if rec.Ref < -1 || rec.Ref >= 3 || len(rec.Name) > len(b) {
+			t.Fatalf("accepted an impossible record: %+v", rec)
+		}
+		_ = Unclipped5(rec.Pos, rec.Cigar, rec.Flags&FlagReverse != 0)
+	})
+}
+
+func fuzzHeader() *Header {
+	return &Header{Refs: []string{"chr1", "chr2"}, refIndex: map[string]int32{"chr1": 0, "chr2": 1}, Library: map[string]string{}}
+}
+
+func FuzzParseSAMLine(f *testing.F) {
+	f.Add([]byte("r1\t99\tchr1\t100\t60\t5S95M\t=\t300\t250\t*\t*\tRG:Z:g1\tMC:Z:100M"))
+	h := fuzzHeader()
+	f.Fuzz(func(t *testing.T, line []byte) {
+		var rec Record
+		if err := ParseSAMLine(line, h, &rec); err != nil {
+			return
+		}
+		if rec.Ref < -1 || rec.Ref > 1 || rec.Pos < -1 {
+			t.Fatalf("accepted an impossible record: %+v", rec)
+		}
+		_ = Unclipped5(rec.Pos, rec.Cigar, rec.Flags&FlagReverse != 0)
+		_, _ = ParseSpot(rec.Name), NameUMI(rec.Name)
+		var k Keyer
+		k.Opt.OpticalNames, k.Opt.UMIFromName = true, true
+		k.Alignment(&rec, 0)
+	})
+}
+
+func FuzzFASTQ(f *testing.F) {
+	f.Add([]byte("@r1\nACGT\n+\nIIII\n"))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		r := NewFASTQReader(bytes.NewReader(data))
+		var rec FASTQRecord
+		for i := 0; ; i++ {
+			err := r.Read(&rec)
+			if err != nil {
+				if err != io.EOF && r.Read(&rec) != err {
+					t.Fatalf("error not sticky")
+				}
+				return
+			}
+			if len(rec.Seq) != len(rec.Qual) {
+				t.Fatalf("record %d: seq %d qual %d", i, len(rec.Seq), len(rec.Qual))
+			}
+			if i > len(data) {
+				t.Fatalf("more records than bytes")
+			}
+		}
+	})
+}
+
+// FuzzOpen feeds arbitrary bytes through format sniffing and the matching
+// reader, as `headroom reads` does: any input must end in records or an
+// error, never a panic or a hang.
+func FuzzOpen(f *testing.F) {
+	f.Add([]byte("@HD\tVN:1.6\n"))
+	f.Add([]byte("\x1f\x8b\x08\x00\x00\x00\x00\x00\x00\xff"))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		in, err := Open(bytes.NewReader(data), 2)
+		if err != nil {
+			return
+		}
+		defer in.Close()
+		switch in.Format {
+		case FormatBAM:
+			r, err := NewBAMReader(in)
+			if err != nil {
+				return
+			}
+			var rec Record
+			for r.Read(&rec) == nil {
+			}
+		case FormatSAM:
+			r, err := NewSAMReader(in)
+			if err != nil {
+				return
+			}
+			var rec Record
+			for r.Read(&rec) == nil {
+			}
+		case FormatFASTQ:
+			r := NewFASTQReader(in.Reader())
+			var rec FASTQRecord
+			for r.Read(&rec) == nil {
+			}
+		}
+	})
+}
+
+// TestWriteFuzzCorpus regenerates the seed corpora from the fixtures.
+func TestWriteFuzzCorpus(t *testing.T) {
+	if os.Getenv("HEADROOM_WRITE_CORPUS") == "" {
+		t.Skip("set HEADROOM_WRITE_CORPUS=1 to rewrite testdata/fuzz from ../testdata/reads")
+	}
+	fix := filepath.Join("..", "testdata", "reads")
+	write := func(fuzz string, i int, b []byte) {
+		dir := filepath.Join("testdata", "fuzz", fuzz)
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		body := fmt.Sprintf("go test fuzz v1\n[]byte(%q)\n", b)
+		if err := os.WriteFile(filepath.Join(dir, fmt.Sprintf("seed%02d", i)), []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	// BAM records: raw blocks of the first records of sorted.bam.
+	fh, err := os.Open(filepath.Join(fix, "sorted.bam"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer fh.Close()
+	in, err := Open(fh, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	br, err := NewBAMReader(in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := in.Reader()
+	for i := 0; i < 12; i++ {
+		var l [4]byte
+		if _, err := io.ReadFull(r, l[:]); err != nil {
+			t.Fatal(err)
+		}
+		b := make([]byte, binary.LittleEndian.Uint32(l[:]))
+		if _, err := io.ReadFull(r, b); err != nil {
+			t.Fatal(err)
+		}
+		write("FuzzDecodeBAM", i, b)
+	}
+	_ = br
+	// SAM lines.
+	sam, err := os.ReadFile(filepath.Join(fix, "sorted.sam"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	k := 0
+	for _, l := range bytes.Split(sam, []byte("\n")) {
+		if len(l) == 0 || l[0] == '@' {
+			continue
+		}
+		l = bytes.Replace(l, []byte("chrA"), []byte("chr1"), -1)
+		l = bytes.Replace(l, []byte("chrB"), []byte("chr2"), -1)
+		write("FuzzParseSAMLine", k, l)
+		if k++; k == 12 {
+			break
+		}
+	}
+	// FASTQ: the first records of single.fastq, and a damaged copy.
+	fq, err := os.ReadFile(filepath.Join(fix, "single.fastq"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	write("FuzzFASTQ", 0, fq[:1500])
+	write("FuzzFASTQ", 1, append([]byte("@x\r\nAC\r\n+\r\nII\r\n\n\n"), fq[:300]...))
+	write("FuzzOpen", 0, fq[:800])
+	write("FuzzOpen", 1, sam[:3000])
+	bam, _ := os.ReadFile(filepath.Join(fix, "sorted.bam"))
+	write("FuzzOpen", 2, bam[:4096])
+	gz, _ := os.ReadFile(filepath.Join(fix, "pairs_R1.fastq.gz"))
+	write("FuzzOpen", 3, gz[:2048])
+}

@@ -1,0 +1,102 @@
+package reads
+
+import (
+	"errors"
+	"testing"
+)
+
+// TestUnclipped5 checks the unclipped 5' end on CIGARs with every kind of
+// operation, on both strands. Expected values are worked by hand from the
+// SAM specification (v1.6, section 1.4.6, the table of CIGAR operations):
+// M, D, N, = and X consume the reference; I, S, H and P do not; S and H at
+// either end are the clips. POS is 0-based here (SAM POS minus 1).
+func TestUnclipped5(t *testing.T) {
+	cases := []struct {
+		cigar string
+		pos   int32
+		rev   bool
+		want  int64
+		why   string
+	}{
+		{"100M", 1000, false, 1000, "no clip: forward end is POS"},
+		{"100M", 1000, true, 1099, "reverse: POS + 100 - 1"},
+		{"5S95M", 1000, false, 995, "leading soft clip moves the forward end left"},
+		{"5S95M", 1000, true, 1094, "a leading clip is the reverse read's 3' end: ignored"},
+		{"95M5S", 1000, true, 1099, "trailing soft clip added to the reverse end"},
+		{"95M5S", 1000, false, 1000, "trailing clip is the forward read's 3' end: ignored"},
+		{"3H5S92M", 1000, false, 992, "H and S both count: 1000 - 8"},
+		{"92M5S3H", 1000, true, 1099, "1000 + 92 - 1 + 8"},
+		{"50M2I48M", 1000, true, 1097, "I does not consume the reference: 98 ref bases"},
+		{"50M4D50M", 1000, true, 1103, "D consumes the reference: 104 ref bases"},
+		{"40M300N60M", 1000, true, 1399, "N consumes the reference: 400 ref bases"},
+		{"40M300N60M", 1000, false, 1000, "N does not move the forward end"},
+		{"10S40M2P3I300N20=5X12S", 2000, true, 2000 + 40 + 300 + 20 + 5 - 1 + 12, "P and I skipped, = and X consume"},
+		{"10S40M2P3I300N20=5X12S", 2000, false, 1990, "forward: only the 10S lead counts"},
+		{"7H", 500, false, 493, "only clips: forward end is POS - clip"},
+		{"*", 500, true, 500, "no CIGAR: the read covers its position"},
+	}
+	for _, c := range cases {
+		cig, err := ParseCigar(nil, []byte(c.cigar))
+		if err != nil {
+			t.Fatalf("ParseCigar(%q): %v", c.cigar, err)
+		}
+		if got := Unclipped5(c.pos, cig, c.rev); got != c.want {
+			t.Errorf("Unclipped5(pos=%d, %s, reverse=%v) = %d, want %d (%s)", c.pos, c.cigar, c.rev, got, c.want, c.why)
+		}
+	}
+}
+
+func TestParseCigar(t *testing.T) {
+	good := map[string]int{"*": 0, "10M": 1, "1S2M3I4D5N6S7H8P9=10X": 10}
+	for s, n := range good {
+		c, err := ParseCigar(nil, []byte(s))
+		if err != nil || len(c) != n {
+			t.Errorf("ParseCigar(%q) = %d ops, %v; want %d ops", s, len(c), err, n)
+		}
+	}
+	for _, s := range []string{"", "M", "10", "10Q", "5M*", "-5M", "268435456M"} {
+		if _, err := ParseCigar(nil, []byte(s)); !errors.Is(err, ErrBadCigar) {
+			t.Errorf("ParseCigar(%q): err = %v, want ErrBadCigar", s, err)
+		}
+	}
+}
+
+func TestParseSpot(t *testing.T) {
+	cases := []struct {
+		name       string
+		ok         bool
+		lane, tile int64
+		x, y       int64
+	}{
+		{"A00123:8:HXYZ:2:1101:12345:2000", true, 2, 1101, 12345, 2000},
+		{"A00123:8:HXYZ:2:1101:12345:2000/1", true, 2, 1101, 12345, 2000},
+		{"A00123:8:HXYZ:2:1101:12345:2000:ACGTACGT", true, 2, 1101, 12345, 2000},
+		{"HWI-1:3:22:1733:98", true, 3, 22, 1733, 98},
+		{"read17", false, 0, 0, 0, 0},
+		{"a:b:c:d:e:f:g", false, 0, 0, 0, 0},
+		{"A:1:F:2:1101:2000000:5", false, 0, 0, 0, 0}, // x beyond 20 bits
+	}
+	for _, c := range cases {
+		s := ParseSpot([]byte(c.name))
+		if (s != 0) != c.ok {
+			t.Errorf("ParseSpot(%q) = %#x, want ok=%v", c.name, uint64(s), c.ok)
+			continue
+		}
+		if c.ok && (s.X() != c.x || s.Y() != c.y || s>>40 != Spot(uint64(c.lane+1)<<16|uint64(c.tile))) {
+			t.Errorf("ParseSpot(%q): x=%d y=%d tile bits %#x", c.name, s.X(), s.Y(), uint64(s>>40))
+		}
+	}
+}
+
+func TestNameUMI(t *testing.T) {
+	for name, want := range map[string]string{
+		"A1:8:FC:2:1101:1:2:ACGTTT+GGCA": "ACGTTT+GGCA",
+		"read7_TTAGGC":                   "TTAGGC",
+		"read7_TTAGGC/2":                 "TTAGGC",
+		"A1:8:FC:2:1101:1:2":             "",
+	} {
+		if got := string(NameUMI([]byte(name))); got != want {
+			t.Errorf("NameUMI(%q) = %q, want %q", name, got, want)
+		}
+	}
+}
