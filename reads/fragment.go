@@ -59,9 +59,10 @@ const skipFlags = FlagUnmapped | FlagSecondary | FlagQCFail | FlagSupplementary
 
 // Alignment returns the fragment rec starts, if any: rec must be primary,
 // mapped, not QC-failed, with MAPQ at least MinMapQ; of a pair with both
-// mates mapped only the first-in-pair record starts the fragment, whose
-// key holds both unclipped ends as an unordered pair; a record whose mate
-// is unmapped is a single-end fragment.
+// mates mapped only one record starts the fragment (the mate at the lower
+// unclipped end when the MC tag gives the mate's end, else the
+// first-in-pair record), whose key holds both unclipped ends as an
+// unordered pair; a record whose mate is unmapped is a single-end fragment.
 func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 	if rec.Flags&skipFlags != 0 || int(rec.MapQ) < k.Opt.MinMapQ || rec.Ref < 0 || rec.Pos < 0 {
 		k.Skipped++
@@ -91,25 +92,39 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 		f.LastRef, f.LastPos = rec.Ref, end
 		return f, true
 	}
-	if rec.Flags&FlagRead2 != 0 && rec.Flags&FlagRead1 == 0 {
-		k.Skipped++
-		return Fragment{}, false
-	}
+	read2 := rec.Flags&FlagRead2 != 0 && rec.Flags&FlagRead1 == 0
 	mrev := rec.Flags&FlagMateReverse != 0
 	mend := int64(rec.MatePos)
+	exact := false
 	if rec.MC != nil {
 		var err error
 		k.mc, err = ParseCigar(k.mc, rec.MC)
 		if err == nil {
 			mend = Unclipped5(rec.MatePos, k.mc, mrev)
-		} else {
-			k.noMC(lib)
+			exact = true
 		}
-	} else {
-		k.noMC(lib)
 	}
 	a := end5{rec.Ref, end, rev}
 	b := end5{rec.MateRef, mend, mrev}
+	// Count the pair once, on the mate at the lower end (first-in-pair on
+	// a tie): every copy of a molecule is then counted on the same
+	// chromosome, whichever mate was sequenced first, so a scatter by
+	// chromosome sends all copies to one shard and merged shards equal the
+	// whole. With MC the ends are the exact unclipped ones; without it the
+	// two mates see only each other's raw positions (POS, PNEXT), which
+	// both records agree on, so the raw positions decide.
+	var lower bool
+	if exact {
+		lower = a.less(b) || (a == b && !read2)
+	} else {
+		own, mate := end5{rec.Ref, int64(rec.Pos), false}, end5{rec.MateRef, int64(rec.MatePos), false}
+		lower = own.less(mate) || (own == mate && !read2)
+		k.noMC(lib)
+	}
+	if !lower {
+		k.Skipped++
+		return Fragment{}, false
+	}
 	if b.less(a) {
 		a, b = b, a
 	}
