@@ -2,10 +2,7 @@ package complexity
 
 import (
 	"math"
-	"os"
 	"sort"
-	"strconv"
-	"strings"
 )
 
 // Intervals for extrapolated values.
@@ -24,58 +21,48 @@ import (
 // where s_boot is a robust standard deviation of log Δ over the replicates
 // (half the distance between their 15.87% and 84.13% quantiles) and
 // s_model is the model-error term for the depth multiple m = t/N,
-// piecewise linear in log m through modelErrKnots, zero at m = 1 (no
+// piecewise linear in log m through ModelErrorKnots, zero at m = 1 (no
 // extrapolation, no model error), constant beyond the last knot (totals
 // use the last knot). hi is capped at D + (t − N): no more new units than
 // new reads.
 //
-// Derivation of modelErrKnots (calibration set, seed 2 of
+// Derivation of ModelErrorKnots (calibration set, seed 2 of
 // scripts/accuracy, 224 cases, disjoint from the reporting set, seed 1):
 // for each multiple, the smallest s_model for which 95% of the cases have
 // |log(Δ_true/Δ̂)| ≤ 1.96·sqrt(s_boot² + s_model²). The coverage the
 // benchmark reports (seed 1) is therefore out of sample. A log-normal
 // error is assumed to transfer the calibration to levels other than 95%.
-var modelErrKnots = envKnots("HEADROOM_SM", []knot{{1, 0}, {2, 0.02}, {10, 0.10}, {30, 0.20}, {100, 0.30}})
+// The calibration is reproduced by `go run ./scripts/accuracy -seed 2
+// -calibrate`, which sets the knots to zero (bootstrap-only intervals)
+// and prints the derived ones. Programs other than that calibration must
+// treat ModelErrorKnots as read-only.
 
-type knot struct{ m, s float64 }
+// ModelErrorKnots are the knots (depth multiple, s_model) of the
+// model-error term of extrapolation intervals, calibrated as described
+// above.
+var ModelErrorKnots = []Knot{{1, 0}, {2, 0.015}, {10, 0.083}, {30, 0.192}, {100, 0.269}}
 
-// envKnots lets the calibration run override the knots (HEADROOM_SM =
-// "s2,s10,s30,s100"; "0,0,0,0" gives bootstrap-only intervals).
-func envKnots(name string, def []knot) []knot {
-	v := os.Getenv(name)
-	if v == "" {
-		return def
-	}
-	fs := strings.Split(v, ",")
-	out := []knot{{1, 0}}
-	for i, m := range []float64{2, 10, 30, 100} {
-		if i < len(fs) {
-			x, err := strconv.ParseFloat(fs[i], 64)
-			if err == nil {
-				out = append(out, knot{m, x})
-			}
-		}
-	}
-	return out
-}
+// Knot is one point of the model-error curve: at depth multiple M the
+// model-error standard deviation of log Δ is S.
+type Knot struct{ M, S float64 }
 
 // modelErr returns s_model at multiple m.
 func modelErr(m float64) float64 {
-	k := modelErrKnots
-	if !(m > 1) {
+	k := ModelErrorKnots
+	if !(m > 1) || len(k) == 0 {
 		return 0
 	}
-	if m >= k[len(k)-1].m {
-		return k[len(k)-1].s
+	if m >= k[len(k)-1].M {
+		return k[len(k)-1].S
 	}
 	for i := 1; i < len(k); i++ {
-		if m <= k[i].m {
+		if m <= k[i].M {
 			a, b := k[i-1], k[i]
-			f := (math.Log(m) - math.Log(a.m)) / (math.Log(b.m) - math.Log(a.m))
-			return a.s + f*(b.s-a.s)
+			f := (math.Log(m) - math.Log(a.M)) / (math.Log(b.M) - math.Log(a.M))
+			return a.S + f*(b.S-a.S)
 		}
 	}
-	return k[len(k)-1].s
+	return k[len(k)-1].S
 }
 
 // interval turns bootstrap replicate values at depth t into an interval at

@@ -12,12 +12,17 @@ import (
 //
 //	P(X = j) = ∫ e^{−λ} λ^j / j! · φ((log λ − μ)/σ) / σ  d log λ,
 //
-// evaluated as a sum over the fixed log-rate grid of mixture.go (step 0.05
+// evaluated as a sum over the fixed log-rate grid of mixture.go (step 0.1
 // in log λ, |z| < lnZMax). μ and σ are fitted by maximum likelihood to the
-// zero-truncated counts, classes above censorJ lumped (mixture.go), by
-// Nelder–Mead on (μ, log σ). The extrapolation is
+// zero-truncated counts, classes above censorJ lumped or (free head,
+// method "lognormal-h") left out and the rest conditioned on 1 ≤ X ≤ J
+// (mixture.go), by Nelder–Mead on (μ, log σ) from three starts. With grid
+// weights g_k the extrapolation is (gridModel)
 //
-//	D(tN) = D · Σ_k g_k (1 − e^{−tλ_k}) / Σ_k g_k (1 − e^{−λ_k}).
+//	D(sN) = D + a · Σ_k g_k (e^{−λ_k} − e^{−sλ_k}),
+//
+// a = D / Σ_k g_k (1 − e^{−λ_k}) for the censored fit, which makes it
+// D · Σ g_k (1 − e^{−sλ_k}) / Σ g_k (1 − e^{−λ_k}).
 //
 // Valid for every t ≥ 0; bounded (Limit is the estimated library size).
 // Returns an error when the table has fewer than two distinct units or no
@@ -26,10 +31,10 @@ import (
 // References: Bulmer (1974), On fitting the Poisson lognormal distribution to
 // species-abundance data, Biometrics 30:101; Preston (1948), Ecology 29:254.
 
-// lnZMax bounds the lognormal weights to |z| < 8 (mass beyond: ~1e−15).
+// lnZMax bounds the lognormal weights to |z| < 6 (mass beyond: 2e−9).
 const lnZMax = 6.0
 
-// lognormal σ range: below lnSigmaMin the grid (step 0.05) cannot resolve
+// lognormal σ range: below lnSigmaMin the grid (step 0.1) cannot resolve
 // the distribution (it is then a Poisson at one grid rate); above
 // lnSigmaMax the fitted distribution spans more than the grid.
 const (

@@ -103,7 +103,7 @@ func TestZTNBLikelihoodScipy(t *testing.T) {
 // TestLognormalPMFScipy: the grid Poisson–lognormal probabilities against
 // scipy.integrate.quad of poisson.pmf × norm.pdf.
 func TestLognormalPMFScipy(t *testing.T) {
-	k := gridKernel(censorJ)
+	k := gridKernel(30)
 	f := &lnFit{k: k, g: make([]float64, len(k.x))}
 	n := 0
 	for _, r := range readScipy(t) {
@@ -132,7 +132,7 @@ func TestLognormalPMFScipy(t *testing.T) {
 // TestGrowthScipy: the extrapolation formulas E[1 − e^{−tλ}] of the gamma
 // (closed form) and lognormal (grid) models against scipy quadrature.
 func TestGrowthScipy(t *testing.T) {
-	k := gridKernel(censorJ)
+	k := gridKernel(30)
 	f := &lnFit{k: k, g: make([]float64, len(k.x))}
 	for _, r := range readScipy(t) {
 		switch r.kind {
@@ -186,21 +186,6 @@ func TestPoissonSizeScipy(t *testing.T) {
 		}
 		if got := m.Distinct(float64(n)); relDiff(got, float64(d)) > lwTol {
 			t.Errorf("N=%d D=%d: D(N) = %.12g", n, d, got)
-		}
-	}
-}
-
-// TestThinHistScipy: expected thinning of one unit seen j times is the
-// Binomial(j, f) pmf (scipy.stats.binom.pmf).
-func TestThinHistScipy(t *testing.T) {
-	for _, r := range readScipy(t) {
-		if r.kind != "binom_pmf" || r.c == 0 {
-			continue
-		}
-		c, _ := NewCounts([]Class{{int64(r.a), 1}})
-		hs := thinHist(c, r.b, censorJ)
-		if got := hs.h[int(r.c)]; relDiff(got, r.value) > pmfTol {
-			t.Errorf("j=%g f=%g k=%g: %.15g, scipy %.15g", r.a, r.b, r.c, got, r.value)
 		}
 	}
 }
@@ -381,5 +366,27 @@ func TestModelsAnchored(t *testing.T) {
 				t.Errorf("%s fitted %v without error", cd.name, bad)
 			}
 		}
+	}
+}
+
+// TestPoissonEdges: no duplicates means an unbounded library (D(t) = t,
+// the Lander–Waterman limit U → ∞); an empty table cannot be fitted.
+func TestPoissonEdges(t *testing.T) {
+	c, _ := NewCounts([]Class{{1, 10}})
+	m, err := FitPoisson(c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if v := m.Distinct(100); v != 100 {
+		t.Errorf("D(100) = %g, want 100", v)
+	}
+	if _, ok := m.Limit(); ok {
+		t.Error("limit of an all-singleton table must be unbounded")
+	}
+	if _, err := FitPoisson(Counts{}); err == nil {
+		t.Error("empty table fitted")
+	}
+	if v := m.Distinct(math.NaN()); !IsMissing(v) {
+		t.Errorf("D(NaN) = %g", v)
 	}
 }

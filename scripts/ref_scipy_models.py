@@ -12,7 +12,6 @@ Rows: kind, parameters, value. Kinds:
   gamma_growth  k theta t        E[1 - exp(-t lam)], lam ~ Gamma(k, theta)  (quad of gamma.pdf)
   ln_growth     mu sigma t       E[1 - exp(-t lam)], log lam ~ N(mu, sigma^2) (quad)
   lw_size       reads distinct   U solving U (1 - exp(-reads/U)) = distinct (scipy.optimize.brentq)
-  binom_pmf     j f k            P(K=k), K ~ Binomial(j, f)  (scipy.stats.binom.pmf)
 """
 import math
 import sys
@@ -57,7 +56,3 @@ for n, d in [(1000, 900), (100000, 20000), (50, 49), (10**7, 3 * 10**6)]:
     g = lambda u: u * -math.expm1(-n / u) - d
     u = optimize.brentq(g, d * (1 + 1e-12), 1e15, xtol=1e-6, rtol=1e-15)
     out.write("lw_size\t%d\t%d\t0\t%.17g\n" % (n, d, u))
-
-for j, f in [(5, 0.1), (40, 0.25), (1000, 0.01)]:
-    for k in [0, 1, 2, 3, 10]:
-        out.write("binom_pmf\t%d\t%r\t%d\t%.17g\n" % (j, f, k, stats.binom.pmf(k, j, f)))
