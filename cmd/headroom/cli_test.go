@@ -169,3 +169,25 @@ func TestMerge(t *testing.T) {
 		t.Errorf("same shard twice: exit %d stderr %q", code, stderr)
 	}
 }
+
+// TestHelp: every subcommand's --help goes to stdout with exit 0 and has a
+// synopsis, its flags with defaults, the exit codes and an example.
+func TestHelp(t *testing.T) {
+	for name := range subcommands {
+		if name == "version" {
+			continue
+		}
+		code, out, stderr := runCLI(t, "", name, "--help")
+		if code != 0 || stderr != "" {
+			t.Errorf("%s --help: exit %d, stderr %q", name, code, stderr)
+		}
+		for _, want := range []string{"usage: headroom " + name, "exit status:", "example:", "  headroom " + name} {
+			if !strings.Contains(out, want) {
+				t.Errorf("%s --help lacks %q", name, want)
+			}
+		}
+		if strings.Contains(out, "NaN") {
+			t.Errorf("%s --help shows NaN", name)
+		}
+	}
+}

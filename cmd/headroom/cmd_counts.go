@@ -25,14 +25,9 @@ how many distinct units were seen exactly times_seen times). Several samples
 may share a file; '-' reads standard input. With --per-unit, each FILE holds
 one count per line per unit, and the sample is named after the file.
 
-Writes one summary row per sample (TSV or JSON) to stdout or -o FILE.
-
-flags:
-%s
-exit status: 0 success, 1 bad input, 2 usage error, 3 a gate failed under --strict
-
-example:
-  headroom counts --at 10x,50M --bootstrap 200 testdata/demo/qc-pass.counts.tsv
+Writes one summary row per sample (TSV or JSON) to stdout or -o FILE, and on
+request the curve (--curve), plot (--plot), HTML report (--report) and the
+counts themselves (--save-counts).
 `
 
 func runCounts(a *app, args []string) error {
@@ -42,7 +37,9 @@ func runCounts(a *app, args []string) error {
 	s := addShared(fs)
 	perUnit := fs.Bool("per-unit", false, "each FILE is one count per line per unit; the sample is named after the file")
 	help := fs.BoolP("help", "h", false, "show this help")
-	usage := func() string { return fmt.Sprintf(countsUsage, fs.FlagUsages()) }
+	usage := func() string {
+		return helpText(countsUsage, fs, "headroom counts --at 10x,50M --bootstrap 200 --report qc.html testdata/demo/qc-pass.counts.tsv")
+	}
 	if err := fs.Parse(args); err != nil {
 		return &exitError{code: exitUsage, msg: "counts: " + err.Error(), usage: "usage: headroom counts [flags] FILE... (see headroom counts --help)"}
 	}

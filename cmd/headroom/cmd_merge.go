@@ -30,13 +30,6 @@ It refuses inputs that look like different runs: a file whose samples differ
 from the first file's (unless --partial), or the same shard given twice.
 
 Writes one frequency-count table to stdout or -o FILE (atomically).
-
-flags:
-%s
-exit status: 0 success, 1 bad input, 2 usage error
-
-example:
-  headroom merge -o lib.counts.tsv chr1.counts.tsv chr2.counts.tsv chrX.counts.tsv
 `
 
 func runMerge(a *app, args []string) error {
@@ -51,7 +44,8 @@ func runMerge(a *app, args []string) error {
 		return &exitError{code: exitUsage, msg: "merge: " + err.Error(), usage: short}
 	}
 	if *help {
-		fmt.Fprintf(a.stdout, mergeUsage, fs.FlagUsages())
+		fmt.Fprint(a.stdout, helpText(mergeUsage, fs, "headroom merge -o lib.counts.tsv chr1.counts.tsv chr2.counts.tsv chrX.counts.tsv",
+			"headroom counts --max-dup 0.5 --target 100M --strict lib.counts.tsv"))
 		return nil
 	}
 	files := fs.Args()

@@ -32,6 +32,9 @@ BAM, SAM or FASTQ files (plain, gzip or BGZF; '-' reads standard input), and
 predicts what deeper sequencing of each library would give. Two FASTQ files in
 a row whose first read names agree are read as the two mates of one library.
 
+Writes one summary row per library (TSV or JSON) to stdout or -o FILE, with the
+columns records, used_fragments and optical_dups, and on request the curve,
+plot, HTML report and the frequency counts (--save-counts, for headroom merge).
 `
 
 // readsConfig is the parsed command line of `headroom reads`.
@@ -64,7 +67,8 @@ func runReads(a *app, args []string) error {
 	fs.StringVar(&c.maxMemory, "max-memory", "4G", "memory budget of the hash tables (`SIZE`, e.g. 512M, 4G); past it molecules are subsampled by hash")
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
-			fmt.Fprint(a.stdout, readsUsage+fs.FlagUsages())
+			fmt.Fprint(a.stdout, helpText(readsUsage, fs, "headroom reads --at 10x,100M --report lanes.html testdata/demo/qc_run.bam",
+				"headroom reads --bootstrap 0 -o /dev/null --save-counts chr1.counts.tsv chr1.bam"))
 			return nil
 		}
 		return usagef("reads: %v", err)

@@ -102,9 +102,10 @@ func addShared(fs *pflag.FlagSet) *shared {
 	fs.Float64Var(&s.level, "level", 0.95, "confidence level of the intervals, between 0 and 1")
 	fs.IntVar(&s.threads, "threads", runtime.NumCPU(), "worker goroutines (output does not depend on it)")
 	fs.StringVar(&s.target, "target", "", "`DEPTH` at which the gates are evaluated (10x, 50M, ...; default: the first --at depth)")
-	fs.Float64Var(&s.maxDup, "max-dup", math.NaN(), "gate: fail when the duplicate fraction at the target exceeds `F`")
-	fs.Float64Var(&s.minDistinct, "min-distinct", math.NaN(), "gate: fail when fewer than `N` distinct units are expected at the target")
-	fs.Float64Var(&s.minCoverage, "min-coverage", math.NaN(), "gate: fail when the sample coverage at the target is below `C`")
+	s.maxDup, s.minDistinct, s.minCoverage = math.NaN(), math.NaN(), math.NaN()
+	fs.Var((*optFloat)(&s.maxDup), "max-dup", "gate: fail when the duplicate fraction at the target exceeds `F` (default: no gate)")
+	fs.Var((*optFloat)(&s.minDistinct), "min-distinct", "gate: fail when fewer than `N` distinct units are expected at the target (default: no gate)")
+	fs.Var((*optFloat)(&s.minCoverage), "min-coverage", "gate: fail when the sample coverage at the target is below `C` (default: no gate)")
 	fs.BoolVar(&s.strict, "strict", false, "exit with status 3 when any sample fails a gate")
 	fs.StringVar(&s.progress, "progress", "auto", "progress on stderr: auto (only on a terminal), always or never")
 	return s
@@ -180,4 +181,45 @@ func (s *shared) showProgress(a *app) bool {
 		return false
 	}
 	return a.stderrTTY
+}
+
+// optFloat is a float flag that is unset (NaN) until given, so that its
+// help shows no default.
+type optFloat float64
+
+func (f *optFloat) String() string {
+	if math.IsNaN(float64(*f)) {
+		return ""
+	}
+	return strconv.FormatFloat(float64(*f), 'g', -1, 64)
+}
+
+func (f *optFloat) Set(v string) error {
+	x, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+	if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+		return fmt.Errorf("%q is not a number", v)
+	}
+	*f = optFloat(x)
+	return nil
+}
+
+func (f *optFloat) Type() string { return "float" }
+
+// exitStatusHelp is the exit-status paragraph of every command's help.
+const exitStatusHelp = "exit status: 0 success (whatever the verdicts), 1 bad input or failed run, 2 usage error, 3 a gate failed under --strict\n"
+
+// helpText assembles a command's --help: synopsis and description, every
+// flag with its default, exit codes, and examples.
+func helpText(head string, fs *pflag.FlagSet, examples ...string) string {
+	var b strings.Builder
+	b.WriteString(strings.TrimRight(head, "\n"))
+	b.WriteString("\n\nflags:\n")
+	b.WriteString(fs.FlagUsages())
+	b.WriteString("\n")
+	b.WriteString(exitStatusHelp)
+	b.WriteString("\nexample:\n")
+	for _, e := range examples {
+		b.WriteString("  " + e + "\n")
+	}
+	return b.String()
 }
