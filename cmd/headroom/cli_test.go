@@ -181,7 +181,7 @@ func TestHelp(t *testing.T) {
 		if code != 0 || stderr != "" {
 			t.Errorf("%s --help: exit %d, stderr %q", name, code, stderr)
 		}
-		for _, want := range []string{"usage: headroom " + name, "exit status:", "example:", "  headroom " + name} {
+		for _, want := range []string{"usage: headroom " + name, "exit status:", "example", "  headroom " + name} {
 			if !strings.Contains(out, want) {
 				t.Errorf("%s --help lacks %q", name, want)
 			}

@@ -1,0 +1,148 @@
+package amplicon
+
+import (
+	"bufio"
+	"bytes"
+	"compress/gzip"
+	"errors"
+	"fmt"
+	"io"
+
+	"headroom/complexity"
+)
+
+// Layout says which way a delimited table runs.
+type Layout int
+
+// Layouts. LayoutAuto reads taxa as rows unless the header says the table
+// holds samples as rows (a first header cell such as "SampleID", or
+// column names that are taxonomy strings or DNA sequences, and no sign of
+// taxa as rows); a note says when it did so.
+const (
+	LayoutAuto Layout = iota
+	TaxaAsRows
+	SamplesAsRows
+)
+
+func (l Layout) String() string {
+	switch l {
+	case TaxaAsRows:
+		return "taxa as rows"
+	case SamplesAsRows:
+		return "samples as rows"
+	}
+	return "auto"
+}
+
+// Options controls Read. The zero value detects the layout.
+type Options struct {
+	// Layout of delimited text; ignored for BIOM (whose rows are taxa).
+	Layout Layout
+}
+
+// Sample is one sample of a table.
+type Sample struct {
+	Name   string
+	Counts complexity.Counts // frequency counts of the sample's taxa
+}
+
+// Table is a count table reduced to frequency counts.
+type Table struct {
+	// Format is "tsv", "csv", "ssv" (semicolons), "biom-dense" or
+	// "biom-sparse", with ".gz" appended for gzip input.
+	Format string
+	// Layout is how a delimited table was read (TaxaAsRows for BIOM).
+	Layout Layout
+	// Samples in table order.
+	Samples []Sample
+	// Taxa is the number of taxa (rows, or count columns).
+	Taxa int64
+	// TaxonTotals are the frequency counts of the taxa's totals over all
+	// samples: how many taxa have exactly j reads in the whole table.
+	TaxonTotals complexity.Counts
+	// Notes are remarks about the table as a whole (skipped metadata
+	// columns, the layout detected), one phrase each.
+	Notes []string
+}
+
+// readBuf is the read buffer size; longer lines are assembled (lineReader).
+const readBuf = 64 << 10
+
+// HDF5 file signature (HDF5 File Format Specification, superblock).
+var hdf5Magic = []byte("\x89HDF\r\n\x1a\n")
+
+// Read reads a whole table from r: delimited text or BIOM 1.0 JSON, either
+// possibly gzip-compressed. Errors in the data are *ParseError values.
+func Read(r io.Reader, opt Options) (*Table, error) {
+	br := bufio.NewReaderSize(r, readBuf)
+	gz := false
+	if head, _ := br.Peek(2); len(head) == 2 && head[0] == 0x1f && head[1] == 0x8b {
+		zr, err := gzip.NewReader(br)
+		if err != nil {
+			return nil, perr(0, 0, ErrTruncated, "gzip header unreadable: %v", err)
+		}
+		defer zr.Close()
+		br = bufio.NewReaderSize(zr, readBuf)
+		gz = true
+	}
+	t, err := readPlain(br, opt)
+	if err != nil {
+		return nil, gzipErr(err)
+	}
+	if gz {
+		t.Format += ".gz"
+	}
+	return t, nil
+}
+
+// gzipErr turns a decompression failure into a ParseError.
+func gzipErr(err error) error {
+	var pe *ParseError
+	if errors.As(err, &pe) {
+		return err
+	}
+	switch {
+	case errors.Is(err, gzip.ErrChecksum), errors.Is(err, gzip.ErrHeader):
+		return perr(0, 0, ErrTruncated, "gzip data corrupt (%v); the file is damaged", err)
+	case errors.Is(err, io.ErrUnexpectedEOF):
+		return perr(0, 0, ErrTruncated, "gzip data ends early; the file was cut short")
+	}
+	return err
+}
+
+func readPlain(br *bufio.Reader, opt Options) (*Table, error) {
+	head, err := br.Peek(len(hdf5Magic))
+	if err != nil && err != io.EOF && err != bufio.ErrBufferFull {
+		return nil, err
+	}
+	if bytes.Equal(head, hdf5Magic) {
+		return nil, perr(1, 1, ErrHDF5, "this is a BIOM 2 file (HDF5), which headroom does not read; convert it to "+
+			"TSV or BIOM 1.0 JSON first, e.g. `biom convert -i table.biom -o table.tsv --to-tsv`")
+	}
+	// The first byte that is not white space (or a UTF-8 byte-order mark)
+	// tells JSON from text.
+	for i := 0; ; i++ {
+		b, err := br.Peek(i + 1)
+		if err != nil {
+			if err == io.EOF {
+				return nil, perr(0, 0, ErrEmpty, "empty table: no header and no data")
+			}
+			if err == bufio.ErrBufferFull {
+				return nil, perr(0, 0, ErrSyntax, "no table: the first 64 KiB are white space")
+			}
+			return nil, err
+		}
+		c := b[i]
+		if c == ' ' || c == '\t' || c == '\r' || c == '\n' || (i < 3 && bytes.HasPrefix([]byte("\xef\xbb\xbf"), b)) {
+			continue
+		}
+		if c == '{' {
+			return readBIOM(br)
+		}
+		break
+	}
+	return readDelimited(br, opt)
+}
+
+// note formats one phrase of Table.Notes.
+func note(format string, args ...any) string { return fmt.Sprintf(format, args...) }
