@@ -15,6 +15,16 @@ const (
 	backtestMinDistinct = 20
 )
 
+// The total is the fitted curve's limit only when the curve comes within
+// totalReach of it by totalHorizon times the observed reads: beyond 100x
+// the extrapolation's accuracy was not measured (BENCHMARKS.md), and a
+// limit that lies further out is a guess about the unseen tail. Otherwise
+// the total is Chao1, a lower bound.
+const (
+	totalHorizon = 100.0
+	totalReach   = 0.9
+)
+
 // Analyze estimates everything Report holds for one sample. It never
 // fails: what cannot be estimated is missing (NaN) and explained in Notes.
 func Analyze(c Counts, opt Options) Report {
@@ -147,7 +157,12 @@ func Analyze(c Counts, opt Options) Report {
 		if cv.Model != nil {
 			lim, bounded = cv.Model.Limit()
 		}
-		if bounded && isFinite(lim) && lim >= float64(d) {
+		reached := bounded && isFinite(lim) && lim >= float64(d) &&
+			cv.Model.Distinct(totalHorizon*float64(n)) >= totalReach*lim
+		if bounded && !reached && isFinite(lim) && lim >= float64(d) {
+			r.Notes = append(r.Notes, fmt.Sprintf("the fitted curve is still below %.0f%% of its limit at %.0fx, beyond the depths whose accuracy was measured; total_est is Chao1, a lower bound", 100*totalReach, totalHorizon))
+		}
+		if reached {
 			r.Total, r.TotalMethod = lim, "limit"
 			if len(limits) > 1 {
 				totLoHi[0], totLoHi[1] = interval(lim, limits, level, c, math.Inf(1))

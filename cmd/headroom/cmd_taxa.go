@@ -88,24 +88,13 @@ func runTaxa(a *app, args []string) error {
 	if err != nil {
 		return err
 	}
-	samples := taxaSamples(tab, s.level, *covTarget)
-	var adviceOut []byte
+	samples, runNotes := taxaSamples(tab, s.level, *covTarget)
+	info := runInfo{command: "taxa", inputs: []string{file}, notes: runNotes}
 	if *advise != "" {
-		adviceOut = depthAdvice(tab)
+		// Committed with the other outputs: all or nothing.
+		info.extra = append(info.extra, pendingFile{path: *advise, data: depthAdvice(tab)})
 	}
-	err = a.estimateAndWrite(s, runInfo{command: "taxa", inputs: []string{file}}, samples)
-	if err != nil && err != errStrict {
-		return err
-	}
-	if adviceOut != nil {
-		// Written after the summary so that bad input leaves no file.
-		var outs outputs
-		outs.add(*advise, adviceOut)
-		if cerr := outs.commit(a.stdout); cerr != nil {
-			return cerr
-		}
-	}
-	return err
+	return a.estimateAndWrite(s, info, samples)
 }
 
 // readTaxaTable opens and reads the table, turning reader errors into
@@ -131,10 +120,14 @@ func readTaxaTable(a *app, file string, opt amplicon.Options) (*amplicon.Table, 
 	return tab, nil
 }
 
-// taxaSamples builds the per-sample inputs: frequency counts, the richness
-// columns and the notes (table notes first).
-func taxaSamples(tab *amplicon.Table, level, covTarget float64) []sampleInput {
-	tableNotes := append([]string(nil), tab.Notes...)
+// taxaSamples builds the per-sample inputs (frequency counts, the richness
+// columns and the notes) and the notes about the whole table. The reader's
+// notes (layout, skipped columns) are said once, for the run; cautions that
+// change what every sample's numbers mean (singleton filtering,
+// presence/absence, a rarefied table) are also repeated on each sample, as
+// the TSV has no other place for them.
+func taxaSamples(tab *amplicon.Table, level, covTarget float64) ([]sampleInput, []string) {
+	var tableNotes []string
 	nonEmpty, depleted := 0, 0
 	for _, sm := range tab.Samples {
 		if sm.Counts.Reads() > 0 {
@@ -176,15 +169,13 @@ func taxaSamples(tab *amplicon.Table, level, covTarget float64) []sampleInput {
 			{"reads_to_coverage", needCell},
 		}}
 		in.notes = append(in.notes, tableNotes...)
-		switch {
-		case c.Reads() == 0:
-			in.notes = append(in.notes, "no reads in this sample: nothing to estimate")
-		case complexity.SingletonsDepleted(c):
+		// (A sample without reads is noted by the estimator.)
+		if c.Reads() > 0 && complexity.SingletonsDepleted(c) {
 			in.notes = append(in.notes, singletonNote(c, level))
 		}
 		out[i] = in
 	}
-	return out
+	return out, append(append([]string(nil), tab.Notes...), tableNotes...)
 }
 
 // presenceOnly reports whether no sample has a taxon with more than one

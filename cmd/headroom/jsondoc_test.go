@@ -89,6 +89,22 @@ func validateJSONDoc(t *testing.T, command string, out []byte) {
 	if _, ok := doc["version"].(string); !ok {
 		t.Errorf("version = %v", doc["version"])
 	}
+	if n, ok := doc["notes"]; ok {
+		arr, isArr := n.([]any)
+		if !isArr || len(arr) == 0 {
+			t.Errorf("top-level notes = %v, want a non-empty array when present", n)
+		}
+		for _, x := range arr {
+			if _, isStr := x.(string); !isStr {
+				t.Errorf("top-level note %v is not a string", x)
+			}
+		}
+	}
+	for k := range doc {
+		if k != "tool" && k != "version" && k != "samples" && k != "notes" {
+			t.Errorf("undocumented top-level key %q", k)
+		}
+	}
 	samples, ok := doc["samples"].([]any)
 	if !ok || len(samples) == 0 {
 		t.Fatalf("samples = %v", doc["samples"])
@@ -139,4 +155,17 @@ func TestJSONMatchesDocCounts(t *testing.T) {
 	if !strings.Contains(out, `"verdict":null`) || !strings.Contains(out, `"lo":null`) {
 		t.Errorf("expected null verdicts and intervals without gates and bootstrap")
 	}
+}
+
+func TestJSONMatchesDocReadsTaxa(t *testing.T) {
+	code, out, stderr := runCLI(t, "", "reads", "--format", "json", "--bootstrap", "5", "--progress", "never", demoBAM)
+	if code != 0 {
+		t.Fatalf("reads: exit %d: %s", code, stderr)
+	}
+	validateJSONDoc(t, "reads", []byte(out))
+	code, out, stderr = runCLI(t, "", "taxa", "--format", "json", "--bootstrap", "5", "--min-coverage", "0.9", "../../testdata/taxa/gen_taxa_rows.tsv")
+	if code != 0 {
+		t.Fatalf("taxa: exit %d: %s", code, stderr)
+	}
+	validateJSONDoc(t, "taxa", []byte(out))
 }
