@@ -294,15 +294,17 @@ func rarefiedInterval(c Counts, t float64, level float64) (lo, hi float64) {
 // normalQuantile is the standard normal quantile.
 func normalQuantile(p float64) float64 { return -math.Sqrt2 * math.Erfcinv(2*p) }
 
-// backtest thins c to backtestFraction, refits method, predicts the
-// observed depth and returns the signed relative error against the
-// observed distinct count. The thinning uses its own stream of seed.
+// backtest thins c to backtestFraction, refits the family of m (from
+// scratch: the thinned table's rates are a tenth), predicts the observed
+// depth and returns the signed relative error against the observed
+// distinct count. The thinning uses its own stream of seed. Fallback
+// curves (no mixture family) rerun the whole selection.
 func backtest(c Counts, method string, m Model, seed uint64) float64 {
 	tc := Thin(c, backtestFraction, newRand(seed, math.MaxUint64))
 	if tc.Distinct() < backtestMinDistinct || tc.Units(1) == 0 {
 		return missing
 	}
-	tm, _, err := extrapolate(tc, float64(c.Reads()))
+	tm, err := fitSameFamily(m, tc, float64(c.Reads()))
 	if err != nil {
 		return missing
 	}
@@ -319,3 +321,26 @@ type constantModel float64
 func (k constantModel) Name() string             { return "saturated" }
 func (k constantModel) Distinct(float64) float64 { return float64(k) }
 func (k constantModel) Limit() (float64, bool)   { return float64(k), true }
+
+// fitSameFamily fits the mixture family of m to c from scratch, or reruns
+// the whole selection when m is not a mixture fit.
+func fitSameFamily(m Model, c Counts, maxT float64) (Model, error) {
+	name := m.Name()
+	for _, cd := range candidates {
+		if cd.name != name {
+			continue
+		}
+		hs := newHist(c, censorJ)
+		hs.free = cd.free
+		fm, _, err := cd.fit(hs, nil)
+		if err != nil {
+			return nil, err
+		}
+		if !Admissible(fm, c, maxT) {
+			return nil, ErrNoAdmissible
+		}
+		return fm, nil
+	}
+	em, _, err := extrapolate(c, maxT)
+	return em, err
+}
