@@ -327,19 +327,13 @@ func (k constantModel) Limit() (float64, bool)   { return float64(k), true }
 func fitSameFamily(m Model, c Counts, maxT float64) (Model, error) {
 	name := m.Name()
 	for _, cd := range candidates {
-		if cd.name != name {
-			continue
+		if cd.name == name {
+			fm, err := refitCandidate(name, c, name, nil)
+			if err == nil && !Admissible(fm, c, maxT) {
+				err = ErrNoAdmissible
+			}
+			return fm, err
 		}
-		hs := newHist(c, censorJ)
-		hs.free = cd.free
-		fm, _, err := cd.fit(hs, nil)
-		if err != nil {
-			return nil, err
-		}
-		if !Admissible(fm, c, maxT) {
-			return nil, ErrNoAdmissible
-		}
-		return fm, nil
 	}
 	em, _, err := extrapolate(c, maxT)
 	return em, err

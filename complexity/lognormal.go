@@ -115,14 +115,7 @@ func (f *lnFit) nll(p []float64) float64 {
 		return math.Inf(1)
 	}
 	lo, hi := f.weights(mu, sigma)
-	if lo == hi {
-		return math.Inf(1)
-	}
-	ll := mixLogLik(f.k, f.hs, f.g, lo, hi, f.buf)
-	if math.IsNaN(ll) {
-		return math.Inf(1)
-	}
-	return -ll / f.hs.d
+	return gridNLL(f, lo, hi, lo < hi)
 }
 
 // FitLognormal fits the Poisson–lognormal model to c.
@@ -239,14 +232,7 @@ func (f *ln2Fit) weights2(p []float64) (lo, hi int, ok bool) {
 
 func (f *ln2Fit) nll(p []float64) float64 {
 	lo, hi, ok := f.weights2(p)
-	if !ok {
-		return math.Inf(1)
-	}
-	ll := mixLogLik(f.k, f.hs, f.g, lo, hi, f.buf)
-	if math.IsNaN(ll) {
-		return math.Inf(1)
-	}
-	return -ll / f.hs.d
+	return gridNLL(&f.lnFit, lo, hi, ok)
 }
 
 // fitLognormal2Hist fits the two-component mixture to hs; single, when

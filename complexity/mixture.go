@@ -409,6 +409,13 @@ func (f *paretoFit) weights(p []float64) (lo, hi int, ok bool) {
 
 func (f *paretoFit) nll(p []float64) float64 {
 	lo, hi, ok := f.weights(p)
+	return gridNLL(&f.lnFit, lo, hi, ok)
+}
+
+// gridNLL is the per-unit negative log-likelihood of a grid mixture whose
+// weights are in f.g[0:hi-lo] (+Inf when the weights are infeasible, !ok,
+// or the likelihood is undefined): what Nelder–Mead minimises.
+func gridNLL(f *lnFit, lo, hi int, ok bool) float64 {
 	if !ok {
 		return math.Inf(1)
 	}

@@ -8,6 +8,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"headroom/internal/sim"
 )
 
 // scipyRow is one row of testdata/complexity/models_scipy.tsv, generated
@@ -253,7 +255,7 @@ func TestZTNBRecovers(t *testing.T) {
 	rng := rand.New(rand.NewPCG(11, 12))
 	var b Builder
 	for i := 0; i < S; i++ {
-		lam := theta * gammaDraw(rng, k)
+		lam := theta * sim.Gamma(rng, k)
 		b.AddUnit(poissonDraw(rng, lam))
 	}
 	c, _ := b.Counts()
@@ -304,26 +306,6 @@ func TestLognormalRecovers(t *testing.T) {
 	for i, want := range []float64{mu, math.Log(sigma)} {
 		if math.Abs(m.params[i]-want) > recoverTol*se[i] {
 			t.Errorf("param %d: got %.4f ± %.4f, want %.4f", i, m.params[i], se[i], want)
-		}
-	}
-}
-
-// gammaDraw draws Gamma(shape, 1) (Marsaglia & Tsang 2000, ACM TOMS 26:363).
-func gammaDraw(rng *rand.Rand, shape float64) float64 {
-	if shape < 1 {
-		return gammaDraw(rng, shape+1) * math.Pow(rng.Float64(), 1/shape)
-	}
-	d := shape - 1.0/3
-	c := 1 / math.Sqrt(9*d)
-	for {
-		x := rng.NormFloat64()
-		v := 1 + c*x
-		if v <= 0 {
-			continue
-		}
-		v = v * v * v
-		if math.Log(rng.Float64()) < 0.5*x*x+d-d*v+d*math.Log(v) {
-			return d * v
 		}
 	}
 }

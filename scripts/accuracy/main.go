@@ -41,6 +41,7 @@ import (
 	"time"
 
 	"headroom/complexity"
+	"headroom/internal/sim"
 )
 
 // family generates the relative abundances of S units.
@@ -63,7 +64,7 @@ func gammaFam(shape float64) func(*rand.Rand, int) []float64 {
 	return func(rng *rand.Rand, S int) []float64 {
 		a := make([]float64, S)
 		for i := range a {
-			a[i] = gammaRand(rng, shape)
+			a[i] = sim.Gamma(rng, shape)
 		}
 		return a
 	}
@@ -156,28 +157,6 @@ var families = []family{
 }
 
 var multiples = []float64{2, 10, 30, 100}
-
-// gammaRand draws Gamma(shape, 1) (Marsaglia & Tsang 2000; shape < 1 by
-// the U^(1/shape) boost).
-func gammaRand(rng *rand.Rand, shape float64) float64 {
-	if shape < 1 {
-		return gammaRand(rng, shape+1) * math.Pow(rng.Float64(), 1/shape)
-	}
-	d := shape - 1.0/3
-	c := 1 / math.Sqrt(9*d)
-	for {
-		x := rng.NormFloat64()
-		v := 1 + c*x
-		if v <= 0 {
-			continue
-		}
-		v = v * v * v
-		u := rng.Float64()
-		if math.Log(u) < 0.5*x*x+d-d*v+d*math.Log(v) {
-			return d * v
-		}
-	}
-}
 
 // poissonRand draws Poisson(lam): inversion below 10, PTRS transformed
 // rejection above (Hörmann 1993, Insurance Math Econ 12:39).
