@@ -191,3 +191,19 @@ func TestHelp(t *testing.T) {
 		}
 	}
 }
+
+// TestCountsPerUnit: --per-unit reads one count per unit per line and
+// names the sample after the file; a fraction is an error naming the line.
+func TestCountsPerUnit(t *testing.T) {
+	dir := t.TempDir()
+	p := writeFile(t, dir, "LIB-09.txt", "3\n1\n1\n2\n0\n1\n")
+	code, out, stderr := runCLI(t, "", "counts", "--per-unit", "--bootstrap", "0", p)
+	if code != 0 || !strings.Contains(out, "\nLIB-09\t8\t5\t") {
+		t.Errorf("per-unit: exit %d out %q stderr %q", code, out, stderr)
+	}
+	q := writeFile(t, dir, "bad.txt", "3\n1.5\n")
+	code, _, stderr = runCLI(t, "", "counts", "--per-unit", q)
+	if code != exitInput || !strings.Contains(stderr, q+":2:") {
+		t.Errorf("per-unit fraction: exit %d stderr %q", code, stderr)
+	}
+}
