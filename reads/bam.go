@@ -44,12 +44,14 @@ func NewBAMReader(in *Input) (*BAMReader, error) {
 	if lText < 0 || lText > maxBAMHeader {
 		return nil, fmt.Errorf("reads: BAM header text length %d is invalid", lText)
 	}
-	raw := make([]byte, 0, 8+int(lText)+4)
-	raw = append(raw, fixed[:]...)
-	raw = append(raw, make([]byte, int(lText)+4)...)
-	if _, err := io.ReadFull(r, raw[8:]); err != nil {
+	// The text (and n_ref after it) is copied as it arrives, so that a
+	// corrupt l_text of a short file costs what the file holds, not l_text.
+	var hb bytes.Buffer
+	hb.Write(fixed[:])
+	if _, err := io.CopyN(&hb, r, int64(lText)+4); err != nil {
 		return nil, headerErr(err)
 	}
+	raw := hb.Bytes()
 	nRef := int32(binary.LittleEndian.Uint32(raw[len(raw)-4:]))
 	if nRef < 0 || nRef > maxBAMHeader/9 {
 		return nil, fmt.Errorf("reads: BAM header reference count %d is invalid", nRef)

@@ -43,7 +43,7 @@ const fastqBufSize = 1 << 20
 
 // maxFASTQRecord bounds one record, so a file without line ends cannot
 // grow the buffer without limit.
-const maxFASTQRecord = 1 << 30
+const maxFASTQRecord = maxBAMRecord // 256 MiB, as a BAM record
 
 // NewFASTQReader returns a reader of the FASTQ text in r.
 func NewFASTQReader(r io.Reader) *FASTQReader {
@@ -65,7 +65,7 @@ func (f *FASTQReader) fill() error {
 	}
 	if f.end == len(f.buf) {
 		if len(f.buf) >= maxFASTQRecord {
-			return fmt.Errorf("%w: a record longer than 1 GiB (is this FASTQ?)", ErrBadFASTQ)
+			return fmt.Errorf("%w: a record longer than %d MiB (is this FASTQ?)", ErrBadFASTQ, maxFASTQRecord>>20)
 		}
 		nb := make([]byte, 2*len(f.buf))
 		copy(nb, f.buf[:f.end])

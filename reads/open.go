@@ -248,12 +248,25 @@ func wrapInflate(err error) error {
 	return err
 }
 
-// errReader maps decompression errors to wrapInflate's messages.
-type errReader struct{ r io.Reader }
+// errReader maps decompression errors to wrapInflate's messages. An error
+// that comes with data is held back to the next call, so that every parser
+// sees all the data before it (and reports the same line whatever the
+// decompression path: io.Reader allows either way).
+type errReader struct {
+	r       io.Reader
+	pending error
+}
 
 func (e *errReader) Read(p []byte) (int, error) {
+	if e.pending != nil {
+		return 0, e.pending
+	}
 	n, err := e.r.Read(p)
-	return n, wrapInflate(err)
+	err = wrapInflate(err)
+	if n > 0 && err != nil {
+		e.pending, err = err, nil
+	}
+	return n, err
 }
 
 // tailReader remembers the last bytes read through it, to check the BGZF

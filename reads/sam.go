@@ -37,6 +37,9 @@ func NewSAMReader(in *Input) (*SAMReader, error) {
 		}
 		text = append(text, line...)
 		text = append(text, '\n')
+		if len(text) > maxBAMHeader {
+			return nil, &ParseError{Line: s.line, Err: fmt.Errorf("reads: SAM header is larger than %d MiB", maxBAMHeader>>20)}
+		}
 		if err == io.EOF {
 			break
 		}
@@ -55,6 +58,12 @@ func (s *SAMReader) Header() *Header { return s.h }
 // Line returns the number of lines read so far.
 func (s *SAMReader) Line() int64 { return s.line }
 
+// maxSAMLine bounds one SAM line like maxBAMRecord bounds a BAM record, so
+// that a stream without line ends cannot grow the buffer without limit.
+const maxSAMLine = maxBAMRecord
+
+var errSAMLineLong = fmt.Errorf("%w: a line longer than %d MiB (is this SAM?)", ErrBadSAM, maxSAMLine>>20)
+
 // readLine returns the next line without its line ending; the slice is
 // valid until the next call.
 func (s *SAMReader) readLine() ([]byte, error) {
@@ -62,6 +71,9 @@ func (s *SAMReader) readLine() ([]byte, error) {
 	if err == bufio.ErrBufferFull {
 		s.long = append(s.long[:0], line...)
 		for err == bufio.ErrBufferFull {
+			if len(s.long) > maxSAMLine {
+				return nil, errSAMLineLong
+			}
 			line, err = s.r.ReadSlice('\n')
 			s.long = append(s.long, line...)
 		}

@@ -207,3 +207,23 @@ func TestCountsPerUnit(t *testing.T) {
 		t.Errorf("per-unit fraction: exit %d stderr %q", code, stderr)
 	}
 }
+
+// TestOutputIsInput: an output that would replace an input is refused
+// (exit 2) and the input is left as it was.
+func TestOutputIsInput(t *testing.T) {
+	dir := t.TempDir()
+	p := writeFile(t, dir, "a.tsv", goodTable)
+	for _, args := range [][]string{
+		{"counts", "--bootstrap", "0", "-o", p, p},
+		{"counts", "--bootstrap", "0", "--save-counts", p, p},
+		{"merge", "-o", p, p},
+	} {
+		code, _, stderr := runCLI(t, "", args...)
+		if code != exitUsage || !strings.Contains(stderr, "also an input") {
+			t.Errorf("%v: exit %d stderr %q", args, code, stderr)
+		}
+		if b, _ := os.ReadFile(p); string(b) != goodTable {
+			t.Fatalf("%v: input changed to %q", args, b)
+		}
+	}
+}

@@ -116,6 +116,9 @@ func runMerge(a *app, args []string) error {
 	freqtable.Write(&b, out) // to memory: cannot fail
 	var o outputs
 	o.add(*output, b.Bytes())
+	if err := refuseOverwritingInputs(o.files, files); err != nil {
+		return err
+	}
 	return o.commit(a.stdout)
 }
 

@@ -64,6 +64,7 @@ func runTaxa(a *app, args []string) error {
 		fmt.Fprintf(a.stdout, taxaUsage, fs.FlagUsages())
 		return nil
 	}
+	s.moreOutputs = append(s.moreOutputs, [2]string{"--advise-depth", *advise})
 	if err := s.check(); err != nil {
 		return err
 	}

@@ -85,3 +85,27 @@ func unwrapPath(err error) error {
 	}
 	return err
 }
+
+// refuseOverwritingInputs returns a usage error when an output would
+// replace one of the inputs (the same file by path or by identity, such as
+// a link): the input would be lost and the run could not be repeated.
+func refuseOverwritingInputs(outs []pendingFile, inputs []string) error {
+	for _, o := range outs {
+		if o.path == "" || o.path == "-" {
+			continue
+		}
+		ost, err := os.Stat(o.path)
+		if err != nil {
+			continue // does not exist yet: cannot be an input
+		}
+		for _, in := range inputs {
+			if in == "-" {
+				continue
+			}
+			if ist, err := os.Stat(in); err == nil && os.SameFile(ost, ist) {
+				return usagef("output %s is also an input; write the output to another file", o.path)
+			}
+		}
+	}
+	return nil
+}

@@ -352,6 +352,9 @@ func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) e
 		outs.add(s.saveCounts, writeCounts(samples))
 	}
 	outs.files = append(outs.files, info.extra...)
+	if err := refuseOverwritingInputs(outs.files, info.inputs); err != nil {
+		return err
+	}
 	if err := outs.commit(a.stdout); err != nil {
 		return err
 	}

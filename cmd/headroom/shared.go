@@ -65,6 +65,9 @@ func parseDepth(s string) (depthSpec, error) {
 
 // shared holds the flags every estimating subcommand accepts (DESIGN.md).
 type shared struct {
+	// moreOutputs are a subcommand's own output flags and files, set
+	// before check so that it can refuse two outputs of one name.
+	moreOutputs [][2]string
 	at          []string
 	format      string
 	output      string
@@ -168,6 +171,23 @@ func (s *shared) check() error {
 	case "auto", "always", "never":
 	default:
 		return usagef("--progress must be auto, always or never, not %q", s.progress)
+	}
+	// Two outputs of one file name would overwrite each other, one of them
+	// silently lost. (Outputs to standard output, "-", follow each other.)
+	named := map[string]string{}
+	outs := append([][2]string{
+		{"-o", s.output}, {"--curve", s.curve}, {"--plot", s.plot}, {"--report", s.report}, {"--save-counts", s.saveCounts},
+	}, s.moreOutputs...)
+	for _, o := range outs {
+		flag, path := o[0], o[1]
+		if path == "" || path == "-" {
+			continue
+		}
+		p := filepath.Clean(path)
+		if prev, ok := named[p]; ok {
+			return usagef("%s and %s both write to %s; give each output its own file", prev, flag, path)
+		}
+		named[p] = flag
 	}
 	return nil
 }

@@ -100,6 +100,7 @@ func Read(r io.Reader) ([]Sample, error) {
 		}
 		s := strings.TrimRight(string(b), "\r")
 		if line == 1 {
+			s = strings.TrimPrefix(s, "\ufeff") // a UTF-8 byte-order mark, as spreadsheets write
 			if strings.TrimSpace(s) != Header && strings.Join(strings.Fields(s), "\t") != Header {
 				return nil, &ParseError{Line: 1, Err: ErrHeader}
 			}

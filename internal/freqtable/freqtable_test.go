@@ -120,3 +120,13 @@ func FuzzReadPerUnit(f *testing.F) {
 		_ = complexity.Counts{}
 	})
 }
+
+// A UTF-8 byte-order mark before the header (as spreadsheets save text) is
+// not part of the header (Unicode Standard section 23.8, U+FEFF at the
+// start of a stream is a signature).
+func TestReadByteOrderMark(t *testing.T) {
+	got, err := Read(strings.NewReader("\ufeffsample\ttimes_seen\tunits\nA\t1\t10\n"))
+	if err != nil || len(got) != 1 || got[0].Name != "A" {
+		t.Fatalf("got %+v, %v; want sample A", got, err)
+	}
+}
