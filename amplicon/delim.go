@@ -22,6 +22,17 @@ type lineReader struct {
 	eof  bool
 }
 
+// nextData returns the next line that is neither blank nor a '#'
+// comment, as next does.
+func (lr *lineReader) nextData() ([]byte, bool) {
+	for {
+		line, ok := lr.next()
+		if !ok || !(isBlank(line) || line[0] == '#') {
+			return line, ok
+		}
+	}
+}
+
 // next returns the next line; the slice is overwritten by the next call.
 // It returns false at the end of the input or on error (see err).
 func (lr *lineReader) next() ([]byte, bool) {
@@ -247,12 +258,9 @@ func readDelimited(br *bufio.Reader, opt Options) (*Table, error) {
 	}
 	if pending == nil {
 		for {
-			line, ok := lr.next()
+			line, ok := lr.nextData()
 			if !ok {
 				break
-			}
-			if isBlank(line) || line[0] == '#' {
-				continue
 			}
 			var bad int64
 			var msg string
@@ -378,12 +386,9 @@ func readDelimited(br *bufio.Reader, opt Options) (*Table, error) {
 		return nil, err
 	}
 	for {
-		line, ok := lr.next()
+		line, ok := lr.nextData()
 		if !ok {
 			break
-		}
-		if isBlank(line) || line[0] == '#' {
-			continue
 		}
 		if done, err := rd.fastRow(line, delim, lr.line); done || err != nil {
 			if err != nil {
