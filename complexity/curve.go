@@ -22,7 +22,11 @@ func (cv Curve) Distinct(T float64) float64 {
 	case cv.Model == nil:
 		return math.NaN()
 	}
-	return cv.Model.Distinct(T)
+	// No curve may add more units than reads: every new unit takes a read.
+	// Admissible curves already obey this from the observed depth; the
+	// singleton-free fit (truncated.go) describes a depth beyond the
+	// observed one, and an absurd table can make it overshoot just above N.
+	return math.Min(cv.Model.Distinct(T), float64(cv.Counts.Distinct())+(T-n))
 }
 
 // DupFraction returns 1 - Distinct(T)/T, the expected share of reads that

@@ -73,12 +73,25 @@ func Thin(c Counts, f float64, rng *rand.Rand) Counts {
 	return out
 }
 
-// thinClass thins n_j units of j reads each. With few units each is drawn
-// on its own; otherwise the n_j units are split over k = 0..j by the
-// binomial probabilities with sequential conditional binomials.
+// thinSD is the half-width, in standard deviations, of the window of
+// thinned counts thinClass draws over: the binomial mass beyond 12 sd is
+// below 1e-30 (a Chernoff bound), far below one unit in any table that
+// fits in int64.
+const thinSD = 12
+
+// thinClass thins n_j units of j reads each. When there are fewer units
+// than likely thinned counts, each unit is drawn on its own; otherwise the
+// units are split over the window of likely counts k (jf ± thinSD sd) by
+// the binomial probabilities with sequential conditional binomials. Either
+// way the work is min(n_j, window) draws, at most about 1e7 for any class
+// whose reads fit in int64, so input-controlled counts cannot make it hang.
 func thinClass(m map[int64]int64, cl Class, f float64, rng *rand.Rand) {
 	j, n := cl.Times, cl.Units
-	if n <= j+1 || j > 2000 {
+	mean := float64(j) * f
+	sd := math.Sqrt(mean * (1 - f))
+	lo := int64(math.Max(0, math.Floor(mean-thinSD*sd)))
+	hi := int64(math.Min(float64(j), math.Ceil(mean+thinSD*sd)))
+	if n <= hi-lo+1 {
 		for u := int64(0); u < n; u++ {
 			if k := binomial(rng, j, f); k > 0 {
 				m[k]++
@@ -88,13 +101,11 @@ func thinClass(m map[int64]int64, cl Class, f float64, rng *rand.Rand) {
 	}
 	// P(k) = C(j,k) f^k (1-f)^(j-k), in log space.
 	lf, lg := math.Log(f), math.Log1p(-f)
-	lj, _ := math.Lgamma(float64(j + 1))
+	lj := lgam(float64(j + 1))
 	left := n
 	rest := 1.0
-	for k := int64(0); k < j && left > 0; k++ {
-		a, _ := math.Lgamma(float64(k + 1))
-		b, _ := math.Lgamma(float64(j - k + 1))
-		p := math.Exp(lj - a - b + float64(k)*lf + float64(j-k)*lg)
+	for k := lo; k < hi && left > 0; k++ {
+		p := math.Exp(lj - lgam(float64(k+1)) - lgam(float64(j-k+1)) + float64(k)*lf + float64(j-k)*lg)
 		q := 1.0
 		if rest > 0 {
 			q = math.Min(1, p/rest)
@@ -106,7 +117,7 @@ func thinClass(m map[int64]int64, cl Class, f float64, rng *rand.Rand) {
 		left -= x
 		rest -= p
 	}
-	if left > 0 {
-		m[j] += left
+	if left > 0 && hi > 0 {
+		m[hi] += left
 	}
 }

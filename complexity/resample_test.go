@@ -70,3 +70,26 @@ func TestResample(t *testing.T) {
 		t.Errorf("same seed and stream gave different replicates")
 	}
 }
+
+// TestThinHugeClasses: thinning classes with very many units and very many
+// reads each finishes quickly (the work is bounded by the window of likely
+// counts) and keeps the expected reads f N within 5 standard errors.
+func TestThinHugeClasses(t *testing.T) {
+	c, err := FromMap(map[int64]int64{5000: 1_000_000_000_000, 3: 7, 800_000_000_000: 4})
+	if err != nil {
+		t.Fatal(err)
+	}
+	const f = 0.1
+	tc := Thin(c, f, newRand(3, 1))
+	want := f * float64(c.Reads())
+	// Var of thinned reads = N f (1-f); the window's truncation is < 1e-30.
+	se := math.Sqrt(float64(c.Reads()) * f * (1 - f))
+	if math.Abs(float64(tc.Reads())-want) > 5*se {
+		t.Errorf("thinned reads %d, want %v (se %v)", tc.Reads(), want, se)
+	}
+	// Units seen 5000 or 8e11 times keep reads with probability 1 - 0.9^j,
+	// 1 to within 1e-228; the 7 units seen 3 times may vanish.
+	if d := tc.Distinct(); d < 1_000_000_000_004 || d > c.Distinct() {
+		t.Errorf("distinct %d, want between %d and %d", d, int64(1_000_000_000_004), c.Distinct())
+	}
+}
