@@ -203,7 +203,7 @@ func Analyze(c Counts, opt Options) Report {
 	}
 
 	if _, trunc := cv.Model.(*trunc2Model); cv.Model != nil && r.Method != "saturated" && !trunc {
-		r.BacktestError = backtest(c, r.Method, cv.Model, opt.Seed)
+		r.BacktestError = backtest(c, cv.Model, opt.Seed)
 	}
 
 	if gated {
@@ -259,7 +259,12 @@ func bootstrap(c Counts, m Model, method string, maxT float64, pts []float64, B 
 					// express depths as the same multiples of the observed.
 					scale := float64(rc.Reads()) / float64(c.Reads())
 					for i, t := range pts {
-						v[i] = Curve{Counts: rc, Model: rm}.Distinct(t * scale)
+						v[i] = missing
+						if t > float64(c.Reads()) {
+							// Depths at or below N take the rarefaction
+							// interval; only extrapolated ones need replicates.
+							v[i] = Curve{Counts: rc, Model: rm}.Distinct(t * scale)
+						}
 					}
 					if lim, ok := rm.Limit(); ok {
 						reps.limits[b] = lim
@@ -299,7 +304,7 @@ func normalQuantile(p float64) float64 { return -math.Sqrt2 * math.Erfcinv(2*p) 
 // depth and returns the signed relative error against the observed
 // distinct count. The thinning uses its own stream of seed. Fallback
 // curves (no mixture family) rerun the whole selection.
-func backtest(c Counts, method string, m Model, seed uint64) float64 {
+func backtest(c Counts, m Model, seed uint64) float64 {
 	tc := Thin(c, backtestFraction, newRand(seed, math.MaxUint64))
 	if tc.Distinct() < backtestMinDistinct || tc.Units(1) == 0 {
 		return missing

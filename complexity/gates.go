@@ -104,16 +104,11 @@ func fmtDepth(t float64) string {
 	case math.IsNaN(t):
 		return "?"
 	case t >= 1e9:
-		return trimFloat(t/1e9) + "G"
+		return fmt.Sprintf("%.3gG", t/1e9)
 	case t >= 1e6:
-		return trimFloat(t/1e6) + "M"
+		return fmt.Sprintf("%.3gM", t/1e6)
 	case t >= 1e4:
-		return trimFloat(t/1e3) + "k"
+		return fmt.Sprintf("%.3gk", t/1e3)
 	}
-	return trimFloat(t)
-}
-
-func trimFloat(v float64) string {
-	s := fmt.Sprintf("%.3g", v)
-	return s
+	return fmt.Sprintf("%.3g", t)
 }

@@ -45,12 +45,7 @@ func fracCell(v float64) cell {
 // strCell formats text; tabs and newlines become spaces so a TSV row stays
 // one row.
 func strCell(s string) cell {
-	s = strings.Map(func(r rune) rune {
-		if r == '\t' || r == '\n' || r == '\r' {
-			return ' '
-		}
-		return r
-	}, s)
+	s = freqtable.CleanName(s)
 	j, _ := json.Marshal(s)
 	return cell{s, string(j)}
 }

@@ -6,6 +6,7 @@ import (
 	"image/color"
 	"math"
 	"path/filepath"
+	"sort"
 	"strings"
 
 	"gonum.org/v1/plot"
@@ -67,11 +68,7 @@ func plotSubset(est []estimated) (idx []int, note string) {
 		return v
 	}
 	sorted := append([]int(nil), usable...)
-	for a := 1; a < len(sorted); a++ { // insertion sort: stable, small n
-		for b := a; b > 0 && key(sorted[b]) < key(sorted[b-1]); b-- {
-			sorted[b], sorted[b-1] = sorted[b-1], sorted[b]
-		}
-	}
+	sort.SliceStable(sorted, func(a, b int) bool { return key(sorted[a]) < key(sorted[b]) })
 	pick := map[int]bool{}
 	for k := 0; k < plotMaxCurves; k++ {
 		pick[sorted[k*(len(sorted)-1)/(plotMaxCurves-1)]] = true
@@ -97,7 +94,7 @@ func (depthTicks) Ticks(min, max float64) []plot.Tick {
 			}
 			label := ""
 			if m == 1 || (max/min < 1e3) {
-				label = shortReads(v)
+				label = human(v)
 			}
 			ts = append(ts, plot.Tick{Value: v, Label: label})
 		}
@@ -112,28 +109,10 @@ func (countTicks) Ticks(min, max float64) []plot.Tick {
 	ts := plot.DefaultTicks{}.Ticks(min, max)
 	for i := range ts {
 		if ts[i].Label != "" {
-			ts[i].Label = shortReads(ts[i].Value)
+			ts[i].Label = human(ts[i].Value)
 		}
 	}
 	return ts
-}
-
-// shortReads formats a number of reads or units compactly: 500, 20k, 1.5M, 3G.
-func shortReads(v float64) string {
-	f := func(x float64, suf string) string {
-		s := fmt.Sprintf("%.2f", x)
-		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
-		return s + suf
-	}
-	switch a := math.Abs(v); {
-	case a >= 1e9:
-		return f(v/1e9, "G")
-	case a >= 1e6:
-		return f(v/1e6, "M")
-	case a >= 1e3:
-		return f(v/1e3, "k")
-	}
-	return f(v, "")
 }
 
 // renderPlot draws the saturation plot of the samples and encodes it as

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"html/template"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot/vg"
@@ -228,7 +229,9 @@ func gateText(v float64) string {
 	return fmt.Sprint(v)
 }
 
-// human writes a count for people: 3 significant digits with k/M/G.
+// human writes a count for people (report cells, plot ticks): three
+// significant digits with k/M/G, trailing zeros dropped: 500, 20k, 1.5M,
+// 2.33M, 3G.
 func human(v float64) string {
 	if v != v || v > 1e300 || v < -1e300 {
 		return ""
@@ -242,13 +245,18 @@ func human(v float64) string {
 	}{{1e9, "G"}, {1e6, "M"}, {1e3, "k"}} {
 		if v >= 0.9995*u.d || v <= -0.9995*u.d {
 			x := v / u.d
+			prec := 2
 			switch {
 			case x >= 100 || x <= -100:
-				return fmt.Sprintf("%.0f%s", x, u.suf)
+				prec = 0
 			case x >= 10 || x <= -10:
-				return fmt.Sprintf("%.1f%s", x, u.suf)
+				prec = 1
 			}
-			return fmt.Sprintf("%.2f%s", x, u.suf)
+			t := strconv.FormatFloat(x, 'f', prec, 64)
+			if strings.Contains(t, ".") {
+				t = strings.TrimRight(strings.TrimRight(t, "0"), ".")
+			}
+			return t + u.suf
 		}
 	}
 	return fmt.Sprint(v)

@@ -266,7 +266,7 @@ func Write(w io.Writer, samples []Sample) error {
 	bw := bufio.NewWriter(w)
 	bw.WriteString(Header + "\n")
 	for _, s := range samples {
-		name := cleanName(s.Name)
+		name := CleanName(s.Name)
 		if s.Counts.Distinct() == 0 {
 			// A sample with no reads stays in the table as one empty class.
 			fmt.Fprintf(bw, "%s\t1\t0\n", name)
@@ -279,8 +279,9 @@ func Write(w io.Writer, samples []Sample) error {
 	return bw.Flush()
 }
 
-// cleanName keeps a sample name on one field of one line.
-func cleanName(s string) string {
+// CleanName keeps a name on one field of one line of a tab-separated
+// file: tabs and line breaks become spaces.
+func CleanName(s string) string {
 	return strings.Map(func(r rune) rune {
 		if r == '\t' || r == '\n' || r == '\r' {
 			return ' '
