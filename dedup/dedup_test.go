@@ -143,3 +143,85 @@ func BenchmarkHashedAdd(b *testing.B) {
 	res := h.Results(1)[0]
 	b.ReportMetric(float64(h.PeakBytes)/float64(res.Molecules), "bytes/molecule")
 }
+
+// bruteClusters is the definition of optical clustering written as
+// plainly as possible: every pair compared, single linkage by relabelling.
+func bruteClusters(spots []reads.Spot, dist int64) int64 {
+	n := len(spots)
+	label := make([]int, n)
+	for i := range label {
+		label[i] = i
+	}
+	for i := 0; i < n; i++ {
+		for j := i + 1; j < n; j++ {
+			a, b := spots[i], spots[j]
+			if dist <= 0 || a == 0 || b == 0 || !a.SameTile(b) || absDiff(a.X(), b.X()) > dist || absDiff(a.Y(), b.Y()) > dist {
+				continue
+			}
+			if la, lb := label[i], label[j]; la != lb {
+				for k := range label {
+					if label[k] == lb {
+						label[k] = la
+					}
+				}
+			}
+		}
+	}
+	seen := map[int]bool{}
+	for _, l := range label {
+		seen[l] = true
+	}
+	return int64(len(seen))
+}
+
+// TestClustersMatchesDefinition compares the sweep and the grid with the
+// pairwise definition on random molecules: dense and sparse, one or a few
+// tiles, spots without a position, distances from 1 to wider than a tile.
+func TestClustersMatchesDefinition(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	for trial := 0; trial < 3000; trial++ {
+		n := 2 + r.IntN(300)
+		span := uint64(1 + r.IntN(3000))
+		dist := int64(1 + r.IntN(250)) // 0 (off) is a TestClusters case
+		if trial%50 == 0 {
+			dist = 1 << 21
+		}
+		tiles := 1 + r.IntN(3)
+		spots := make([]reads.Spot, n)
+		for i := range spots {
+			if r.IntN(20) == 0 {
+				continue // no position
+			}
+			spots[i] = spot(0, uint64(1101+r.IntN(tiles)), 500+uint64(r.Uint64N(span)), 500+uint64(r.Uint64N(span)))
+		}
+		want := bruteClusters(spots, dist)
+		for _, f := range []struct {
+			name string
+			fn   func([]reads.Spot, int64) int64
+		}{{"clusters", clusters}, {"sweep", clustersSweep}, {"grid", clustersGrid}} {
+			if got := f.fn(append([]reads.Spot(nil), spots...), dist); got != want {
+				t.Fatalf("trial %d (n %d, span %d, dist %d): %s = %d, want %d", trial, n, span, dist, f.name, got, want)
+			}
+		}
+	}
+}
+
+// TestClustersLargeMolecule: a molecule of 300,000 reads at one spot, or
+// spread along one line in x, is counted without comparing every pair
+// (the direct sweep would take ~4.5e10 comparisons; a hang here means the
+// grid path was lost).
+func TestClustersLargeMolecule(t *testing.T) {
+	const n = 300000
+	same := make([]reads.Spot, n)
+	line := make([]reads.Spot, n)
+	for i := range same {
+		same[i] = spot(0, 1101, 7000, 7000)
+		line[i] = spot(0, 1101, 7000, uint64(i%1000)*150) // y 150 apart: no links
+	}
+	if got := clusters(same, 100); got != 1 {
+		t.Errorf("one spot: %d clusters, want 1", got)
+	}
+	if got := clusters(line, 100); got != 1000 {
+		t.Errorf("a line of 1000 spots: %d clusters, want 1000", got)
+	}
+}
