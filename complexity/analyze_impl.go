@@ -234,7 +234,7 @@ func bootstrap(c Counts, m Model, method string, maxT float64, pts []float64, B 
 	reps := replicates{vals: make([][]float64, B), limits: make([]float64, B), ok: make([]bool, B)}
 	var wg sync.WaitGroup
 	next := make(chan int)
-	for w := 0; w < threads; w++ {
+	for w := 0; w < min(threads, B); w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
@@ -285,15 +285,21 @@ func bootstrap(c Counts, m Model, method string, maxT float64, pts []float64, B 
 
 // rarefiedInterval is the normal-approximation interval of the rarefied
 // expectation, mean ± z sd with the Heck et al. (1975) variance,
-// conditional on the observed sample.
+// conditional on the observed sample, at the real depth t (the same
+// continuation as the point estimate, so the interval always holds it),
+// cut to what is possible: at least 0, at most t and the observed D.
 func rarefiedInterval(c Counts, t float64, level float64) (lo, hi float64) {
-	mean, v := Rarefy(c, int64(math.Round(t)))
+	if !(t >= 0 && t <= float64(c.Reads())) {
+		return missing, missing
+	}
+	mean, v := rarefyAt(c, t, true)
 	if !isFinite(mean) || !isFinite(v) || v < 0 {
 		return missing, missing
 	}
+	mean = math.Min(mean, t) // as Curve.Distinct
 	z := normalQuantile(1 - (1-level)/2)
 	s := math.Sqrt(v)
-	return math.Max(0, mean-z*s), mean + z*s
+	return math.Max(0, mean-z*s), math.Min(mean+z*s, math.Min(t, float64(c.Distinct())))
 }
 
 // normalQuantile is the standard normal quantile.

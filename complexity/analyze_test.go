@@ -120,6 +120,26 @@ func TestAnalyzeInvariants(t *testing.T) {
 	}
 }
 
+// TestAnalyzeTinyAndFractionalDepths: depths of a fraction of a read, or
+// half-way between two whole reads, keep 0 <= dup <= 1, distinct <= reads
+// and the point inside its interval (a depth of 1e-300 reads once gave a
+// duplicate fraction of -3e-8 from round-off, and the rarefied interval
+// was taken at the rounded depth, so it could miss the point).
+func TestAnalyzeTinyAndFractionalDepths(t *testing.T) {
+	c := demoCounts(t)
+	n := float64(c.Reads())
+	depths := []float64{1e-300, 1e-9, 0.5, 1, 1.5, 2.5, 10.5, n/2 + 0.5, n - 0.5}
+	r := Analyze(c, Options{Depths: depths, Bootstrap: 10, Seed: 1, Threads: 1, Gates: NoGates()})
+	for _, p := range r.Predictions {
+		if !(p.DupFraction >= 0 && p.DupFraction <= 1) || p.Distinct > p.Reads {
+			t.Errorf("at %v reads: distinct %v, dup %v", p.Reads, p.Distinct, p.DupFraction)
+		}
+		if !(p.Lo <= p.Distinct && p.Distinct <= p.Hi && p.Hi <= math.Max(p.Reads, 0)) {
+			t.Errorf("at %v reads: interval [%v, %v] around %v", p.Reads, p.Lo, p.Hi, p.Distinct)
+		}
+	}
+}
+
 // TestGates: a gate fails on the point estimate and passes otherwise.
 func TestGates(t *testing.T) {
 	c := demoCounts(t)

@@ -18,7 +18,10 @@ func (cv Curve) Distinct(T float64) float64 {
 	case !(T >= 0):
 		return math.NaN()
 	case T <= n:
-		return rarefyMeanAt(cv.Counts, T)
+		// E[distinct] <= T at whole depths; below one read the gamma
+		// continuation of rarefaction exceeds T by up to ~1e-4 relative
+		// (a duplicate fraction below zero), so it is capped.
+		return math.Min(rarefyMeanAt(cv.Counts, T), T)
 	case cv.Model == nil:
 		return math.NaN()
 	}

@@ -100,7 +100,7 @@ func addShared(fs *pflag.FlagSet) *shared {
 	fs.StringVar(&s.plot, "plot", "", "write a saturation plot to `FILE` (.svg or .png)")
 	fs.StringVar(&s.report, "report", "", "write a self-contained HTML report to `FILE`")
 	fs.StringVar(&s.saveCounts, "save-counts", "", "write the frequency-count tables estimated from to `FILE`")
-	fs.IntVar(&s.bootstrap, "bootstrap", 100, "bootstrap replicates for confidence intervals (`N`, 0 = none)")
+	fs.IntVar(&s.bootstrap, "bootstrap", 100, "bootstrap replicates for confidence intervals (`N`, 0 = none, at most 100000)")
 	fs.Uint64Var(&s.seed, "seed", 1, "random seed for the bootstrap (same seed, same output)")
 	fs.Float64Var(&s.level, "level", 0.95, "confidence level of the intervals, between 0 and 1")
 	fs.IntVar(&s.threads, "threads", runtime.NumCPU(), "worker goroutines (output does not depend on it)")
@@ -113,6 +113,19 @@ func addShared(fs *pflag.FlagSet) *shared {
 	fs.StringVar(&s.progress, "progress", "auto", "progress on stderr: auto (only on a terminal), always or never")
 	return s
 }
+
+// Upper bounds of flags whose value sets how much work or memory a run
+// takes, so that a typo (--bootstrap 1000000000) is a usage error rather
+// than an out-of-memory kill. Each is far beyond any use: the Monte Carlo
+// error of a 95% bootstrap bound is already below 1% of the interval's
+// width at 10,000 replicates; output does not depend on --threads, and no
+// machine this runs on has 1024 cores; a summary of 1000 depths is a curve,
+// which --curve writes.
+const (
+	maxBootstrap = 100000
+	maxThreads   = 1024
+	maxDepths    = 1000
+)
 
 // check validates the shared flags after parsing; errors are usage errors.
 func (s *shared) check() error {
@@ -137,14 +150,17 @@ func (s *shared) check() error {
 	default:
 		return usagef("--format must be tsv or json, not %q", s.format)
 	}
-	if s.bootstrap < 0 {
-		return usagef("--bootstrap must be 0 or more, not %d", s.bootstrap)
+	if len(s.depths) > maxDepths {
+		return usagef("--at: %d depths; give at most %d (use --curve for a fine curve)", len(s.depths), maxDepths)
+	}
+	if s.bootstrap < 0 || s.bootstrap > maxBootstrap {
+		return usagef("--bootstrap must be between 0 and %d, not %d", maxBootstrap, s.bootstrap)
 	}
 	if !(s.level > 0 && s.level < 1) {
 		return usagef("--level must be between 0 and 1 (e.g. 0.95), not %v", s.level)
 	}
-	if s.threads < 1 {
-		return usagef("--threads must be at least 1, not %d", s.threads)
+	if s.threads < 1 || s.threads > maxThreads {
+		return usagef("--threads must be between 1 and %d, not %d", maxThreads, s.threads)
 	}
 	if s.target != "" {
 		d, err := parseDepth(s.target)
