@@ -54,7 +54,7 @@ func (lr *lineReader) next() ([]byte, bool) {
 	}
 	if err != nil {
 		if err != io.EOF {
-			lr.err = err
+			lr.err = gzipErr(lr.line+1, err)
 			return nil, false
 		}
 		lr.eof = true

@@ -87,7 +87,7 @@ func Read(r io.Reader, opt Options) (*Table, error) {
 	}
 	t, err := readPlain(br, opt)
 	if err != nil {
-		return nil, gzipErr(err)
+		return nil, gzipErr(0, err)
 	}
 	if gz {
 		t.Format += ".gz"
@@ -95,17 +95,18 @@ func Read(r io.Reader, opt Options) (*Table, error) {
 	return t, nil
 }
 
-// gzipErr turns a decompression failure into a ParseError.
-func gzipErr(err error) error {
+// gzipErr turns a decompression failure met while reading line into a
+// ParseError (line 0: position unknown).
+func gzipErr(line int64, err error) error {
 	var pe *ParseError
 	if errors.As(err, &pe) {
 		return err
 	}
 	switch {
 	case errors.Is(err, gzip.ErrChecksum), errors.Is(err, gzip.ErrHeader):
-		return perr(0, 0, ErrTruncated, "gzip data corrupt (%v); the file is damaged", err)
+		return perr(line, 0, ErrTruncated, "gzip data corrupt (%v); the file is damaged", err)
 	case errors.Is(err, io.ErrUnexpectedEOF):
-		return perr(0, 0, ErrTruncated, "gzip data ends early; the file was cut short")
+		return perr(line, 0, ErrTruncated, "gzip data ends early; the file was cut short")
 	}
 	return err
 }

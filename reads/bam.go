@@ -77,6 +77,9 @@ func NewBAMReader(in *Input) (*BAMReader, error) {
 	}
 	h, err := decodeBinaryHeader(bytes.NewReader(raw))
 	if err != nil {
+		if n, e, ok := headerTextErr(err); ok {
+			return nil, fmt.Errorf("reads: BAM header text, line %d: %w", n, e)
+		}
 		return nil, fmt.Errorf("reads: BAM header: %v", err)
 	}
 	return &BAMReader{in: in, h: headerFrom(h), nRef: int(nRef)}, nil

@@ -1,11 +1,37 @@
 package reads
 
 import (
+	"errors"
 	"fmt"
 	"io"
+	"regexp"
+	"strconv"
 
 	"github.com/biogo/hts/sam"
 )
+
+// ErrBadHeader is a SAM header line (SAM or BAM header text) that does
+// not follow the SAM specification, section 1.3.
+var ErrBadHeader = errors.New("reads: malformed SAM header line")
+
+// headerLineRe finds the header line that github.com/biogo/hts/sam names
+// in its error ("...: line 2: \"@SQ\tSN:chr1\tLN:zero\"").
+var headerLineRe = regexp.MustCompile(`line ([0-9]+): ("(?:[^"\\]|\\.)*")$`)
+
+// headerTextErr restates an error of parsing header text as ErrBadHeader
+// with the line within the text and its content, when the parser names
+// them; ok is false otherwise.
+func headerTextErr(err error) (line int64, e error, ok bool) {
+	m := headerLineRe.FindStringSubmatch(err.Error())
+	if m == nil {
+		return 0, err, false
+	}
+	n, perr := strconv.ParseInt(m[1], 10, 64)
+	if perr != nil {
+		return 0, err, false
+	}
+	return n, fmt.Errorf("%w %s", ErrBadHeader, m[2]), true
+}
 
 // Header is what duplicate counting needs from a SAM/BAM header.
 type Header struct {

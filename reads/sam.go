@@ -46,6 +46,11 @@ func NewSAMReader(in *Input) (*SAMReader, error) {
 	}
 	h, err := parseHeaderText(text)
 	if err != nil {
+		// The header is the first lines of the file, so a line of the
+		// text is a line of the file.
+		if n, e, ok := headerTextErr(err); ok {
+			return nil, &ParseError{Line: n, Err: e}
+		}
 		return nil, fmt.Errorf("reads: SAM header (lines 1-%d): %v", s.line, err)
 	}
 	s.h = headerFrom(h)

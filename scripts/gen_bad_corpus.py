@@ -155,6 +155,10 @@ put("bam_cut_header.bam", bgzf(bam_header()[:30]))
 case("bam_cut_header", "reads @bam_cut_header.bam", 1, "in the BAM header",
      "well-formed BGZF holding only the first 30 bytes of a BAM header")
 
+put("bam_header_text.bam", bam_file(good_records(), header=bam_header(text="@HD\tVN:1.6\tSO:coordinate\n@SQ\tSN:chr1\tLN:zero\n")))
+case("bam_header_text", "reads @bam_header_text.bam", 1, "BAM header text, line 2: malformed SAM header line",
+     "BAM whose header text has an @SQ line with LN that is not a number")
+
 put("bam_ltext_negative.bam", bam_file(good_records(), header=bam_header(l_text=-5)))
 case("bam_ltext_negative", "reads @bam_ltext_negative.bam", 1, "header text length -5 is invalid",
      "BAM header with l_text = -5")
@@ -252,7 +256,7 @@ case("sam_mapq", "reads @sam_mapq.sam", 1, "sam_mapq.sam:3: malformed SAM line: 
      "MAPQ 999 on line 3 (at most 255)")
 
 put("sam_header.sam", "@HD\tVN:1.6\tSO:unsorted\n@SQ\tSN:chr1\tLN:zero\n" + SAM_OK)
-case("sam_header", "reads @sam_header.sam", 1, "sam_header.sam",
+case("sam_header", "reads @sam_header.sam", 1, "sam_header.sam:2: malformed SAM header line",
      "@SQ LN is not a number in the header")
 
 put("sam_no_header.sam", SAM_OK)
@@ -410,7 +414,7 @@ case("taxa_binary", "taxa @taxa_binary.tsv", 1, "taxa_binary.tsv",
 
 tsv_gz = gz(("taxon\tS1\tS2\n" + "".join("T%d\t%d\t%d\n" % (i, i % 7, i % 11) for i in range(3000))).encode())
 put("taxa_gz_cut.tsv.gz", tsv_gz[:len(tsv_gz) // 2])
-case("taxa_gz_cut", "taxa @taxa_gz_cut.tsv.gz", 1, "taxa_gz_cut.tsv.gz",
+case("taxa_gz_cut", "taxa @taxa_gz_cut.tsv.gz", 1, "taxa_gz_cut.tsv.gz:1477: gzip data ends early",
      "gzip TSV cut at half its compressed length")
 
 put("taxa_hdf5.biom", b"\x89HDF\r\n\x1a\n" + bytes(56))
@@ -499,9 +503,19 @@ put("perunit_neg.txt", "3\n-1\n")
 case("perunit_neg", "counts --per-unit @perunit_neg.txt", 1, "perunit_neg.txt:2: column 1",
      "per-unit counts with -1 on line 2")
 
-put("counts_gzip.tsv.gz", gz((H + "A\t1\t100\n").encode()))
-case("counts_gzip", "counts @counts_gzip.tsv.gz", 1, "counts_gzip.tsv.gz:1: file looks binary",
-     "a gzip-compressed frequency-count table (the format is plain text)")
+counts_gz = gz((H + "".join("S%d\t%d\t%d\n" % (i % 3, i + 1, i % 13 + 1) for i in range(3000))).encode())
+put("counts_gz_cut.tsv.gz", counts_gz[:len(counts_gz) // 2])
+case("counts_gz_cut", "counts @counts_gz_cut.tsv.gz", 1, "counts_gz_cut.tsv.gz:1486: gzip data ends early",
+     "a gzip frequency-count table cut at half its compressed length")
+
+put("counts_gz_crc.tsv.gz", counts_gz[:-8] + bytes([counts_gz[-8] ^ 1]) + counts_gz[-7:])
+case("counts_gz_crc", "counts @counts_gz_crc.tsv.gz", 1, "counts_gz_crc.tsv.gz:3002: gzip data is damaged",
+     "a gzip frequency-count table whose trailer CRC32 has one bit flipped")
+
+perunit_gz = gz("".join("%d\n" % (i * 7919 % 1000) for i in range(5000)).encode())
+put("perunit_gz_cut.txt.gz", perunit_gz[:len(perunit_gz) // 2])
+case("perunit_gz_cut", "counts --per-unit @perunit_gz_cut.txt.gz", 1, "perunit_gz_cut.txt.gz:531: gzip data ends early",
+     "gzip per-unit counts cut at half their compressed length")
 
 case("counts_long_line", "counts %counts_long_line.tsv", 1, "counts_long_line.tsv:2",
      "generated at test time: a 10 MB sample name on line 2")

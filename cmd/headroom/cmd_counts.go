@@ -22,7 +22,8 @@ const countsUsage = `usage: headroom counts [flags] FILE...
 Estimates from frequency-count tables: tab-separated files with the header
 "sample<TAB>times_seen<TAB>units", one row per sample and frequency (units =
 how many distinct units were seen exactly times_seen times). Several samples
-may share a file; '-' reads standard input. With --per-unit, each FILE holds
+may share a file; files may be gzip-compressed; '-' reads standard input.
+With --per-unit, each FILE holds
 one count per line per unit, and the sample is named after the file.
 
 Writes one summary row per sample (TSV or JSON) to stdout or -o FILE, and on

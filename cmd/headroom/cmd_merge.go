@@ -24,7 +24,8 @@ Adds frequency-count tables (sample<TAB>times_seen<TAB>units) of shards of the
 same samples, for example one table per chromosome or per lane written with
 --save-counts: units of equal (sample, times_seen) are summed. This is exact
 when every molecule falls in exactly one shard (scatter by chromosome with
-whole pairs, or by lane with distinct molecules per lane).
+whole pairs, or by lane with distinct molecules per lane). Shards may be
+gzip-compressed.
 
 It refuses inputs that look like different runs: a file whose samples differ
 from the first file's (unless --partial), or the same shard given twice.

@@ -6,7 +6,8 @@
 //	LIB-07	2	9120
 //
 // one row per sample and frequency, where units is how many distinct units
-// were seen exactly times_seen times. Several samples may share a file;
+// were seen exactly times_seen times. Either kind of file may be
+// gzip-compressed. Several samples may share a file;
 // rows of one sample need not be adjacent, but a (sample, times_seen) pair
 // may appear only once. It also reads per-unit files: one non-negative
 // count per line, one line per unit.
@@ -15,6 +16,7 @@ package freqtable
 import (
 	"bufio"
 	"bytes"
+	"compress/gzip"
 	"errors"
 	"fmt"
 	"io"
@@ -63,7 +65,35 @@ var (
 	ErrPerUnit  = errors.New("freqtable: expected one whole number of 0 or more per line (a unit's count)")
 	ErrNoRows   = errors.New("freqtable: the table has a header but no rows")
 	ErrBinary   = errors.New("freqtable: file looks binary (NUL byte), not a text table")
+	ErrGzipCut  = errors.New("freqtable: gzip data ends early; the file was cut short")
+	ErrGzipBad  = errors.New("freqtable: gzip data is damaged (bad header or checksum)")
 )
+
+// newReader returns a buffered reader of the text of r, decompressing it
+// when it starts with the gzip magic bytes (RFC 1952; several members are
+// read one after another, as gzip -dc does).
+func newReader(r io.Reader) (*bufio.Reader, error) {
+	br := bufio.NewReaderSize(r, 64<<10)
+	if head, _ := br.Peek(2); len(head) == 2 && head[0] == 0x1f && head[1] == 0x8b {
+		zr, err := gzip.NewReader(br)
+		if err != nil {
+			return nil, &ParseError{Line: 1, Err: readErr(err)}
+		}
+		br = bufio.NewReaderSize(zr, 64<<10)
+	}
+	return br, nil
+}
+
+// readErr names a failure of reading the (possibly compressed) input.
+func readErr(err error) error {
+	switch {
+	case errors.Is(err, io.ErrUnexpectedEOF), err == io.EOF:
+		return ErrGzipCut
+	case errors.Is(err, gzip.ErrChecksum), errors.Is(err, gzip.ErrHeader):
+		return ErrGzipBad
+	}
+	return err
+}
 
 // Sample is one sample's frequency counts, in order of first appearance.
 type Sample struct {
@@ -74,7 +104,10 @@ type Sample struct {
 // Read parses a whole frequency-count table. Samples come back in order
 // of first appearance.
 func Read(r io.Reader) ([]Sample, error) {
-	br := bufio.NewReaderSize(r, 64<<10)
+	br, err := newReader(r)
+	if err != nil {
+		return nil, err
+	}
 	var (
 		line    int64
 		order   []string
@@ -90,7 +123,11 @@ func Read(r io.Reader) ([]Sample, error) {
 			return nil, &ParseError{Line: line, Err: err}
 		}
 		if err != nil && err != io.EOF {
-			return nil, err
+			at := line // the line being read when the input failed
+			if len(b) == 0 {
+				at++
+			}
+			return nil, &ParseError{Line: at, Err: readErr(err)}
 		}
 		if len(b) == 0 && err == io.EOF {
 			break
@@ -175,7 +212,10 @@ func Read(r io.Reader) ([]Sample, error) {
 // ReadPerUnit parses a per-unit file: one count per line. Blank lines are
 // skipped; zero counts are allowed (units not seen) and ignored.
 func ReadPerUnit(r io.Reader) (complexity.Counts, error) {
-	br := bufio.NewReaderSize(r, 64<<10)
+	br, err := newReader(r)
+	if err != nil {
+		return complexity.Counts{}, err
+	}
 	var (
 		line  int64
 		b     complexity.Builder
@@ -190,7 +230,11 @@ func ReadPerUnit(r io.Reader) (complexity.Counts, error) {
 			return complexity.Counts{}, &ParseError{Line: line, Err: err}
 		}
 		if err != nil && err != io.EOF {
-			return complexity.Counts{}, err
+			at := line // the line being read when the input failed
+			if len(s) == 0 {
+				at++
+			}
+			return complexity.Counts{}, &ParseError{Line: at, Err: readErr(err)}
 		}
 		if len(s) == 0 && err == io.EOF {
 			break

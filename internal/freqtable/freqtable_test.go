@@ -2,7 +2,9 @@ package freqtable
 
 import (
 	"bytes"
+	"compress/gzip"
 	"errors"
+	"fmt"
 	"strings"
 	"testing"
 
@@ -72,12 +74,60 @@ func TestReadPerUnit(t *testing.T) {
 	}
 }
 
+// gzipped compresses s as two gzip members (RFC 1952 allows several;
+// gzip -dc reads them one after another).
+func gzipped(s string) []byte {
+	var b bytes.Buffer
+	for _, part := range []string{s[:len(s)/2], s[len(s)/2:]} {
+		zw := gzip.NewWriter(&b)
+		zw.Write([]byte(part)) // a bytes.Buffer does not fail
+		zw.Close()
+	}
+	return b.Bytes()
+}
+
+// TestReadGzip: a gzip-compressed table reads as its text; a cut one is
+// a ParseError naming the line being read, never a shorter table.
+func TestReadGzip(t *testing.T) {
+	var text strings.Builder
+	text.WriteString(Header + "\n")
+	for i := 1; i <= 2000; i++ {
+		fmt.Fprintf(&text, "S%d\t%d\t%d\n", i%2, i, i%7+1)
+	}
+	plain, err := Read(strings.NewReader(text.String()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	z := gzipped(text.String())
+	got, err := Read(bytes.NewReader(z))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(got) != len(plain) || got[0].Counts.Reads() != plain[0].Counts.Reads() || got[1].Counts.Distinct() != plain[1].Counts.Distinct() {
+		t.Errorf("gzip read %+v, plain %+v", got, plain)
+	}
+	_, err = Read(bytes.NewReader(z[:len(z)*3/4]))
+	var pe *ParseError
+	if !errors.As(err, &pe) || !errors.Is(err, ErrGzipCut) || pe.Line < 2 || pe.Line > 2001 {
+		t.Errorf("cut gzip: %v, want ErrGzipCut at a data line", err)
+	}
+	pu := gzipped("3\n1\n1\n0\n7\n")
+	c, err := ReadPerUnit(bytes.NewReader(pu))
+	if err != nil || c.Reads() != 12 || c.Distinct() != 4 {
+		t.Errorf("per-unit gzip: %v reads %d distinct %d", err, c.Reads(), c.Distinct())
+	}
+	if _, err := ReadPerUnit(bytes.NewReader(pu[:len(pu)-3])); !errors.Is(err, ErrGzipCut) {
+		t.Errorf("per-unit cut gzip: %v, want ErrGzipCut", err)
+	}
+}
+
 // FuzzRead: any input either parses into valid counts that survive a
 // write/read round trip, or fails with a ParseError; never a panic.
 func FuzzRead(f *testing.F) {
 	f.Add([]byte(Header + "\nA\t1\t10\nA\t2\t3\n"))
 	f.Add([]byte(Header + "\r\nA\t1\t10\r\n"))
 	f.Add([]byte(Header + "\nA\t1\t9223372036854775807\n"))
+	f.Add(gzipped(Header + "\nA\t1\t10\nB\t3\t2\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		got, err := Read(bytes.NewReader(data))
 		if err != nil {
@@ -112,6 +162,7 @@ func FuzzRead(f *testing.F) {
 func FuzzReadPerUnit(f *testing.F) {
 	f.Add([]byte("1\n2\n3\n"))
 	f.Add([]byte("0\n\n 5 \n"))
+	f.Add(gzipped("4\n0\n1\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		c, err := ReadPerUnit(bytes.NewReader(data))
 		if err == nil && c.Reads() < 0 {
