@@ -22,7 +22,13 @@ func binomial(src rand.Source, n int64, p float64) int64 {
 	case p >= 1:
 		return n
 	}
-	return int64(distuv.Binomial{N: float64(n), P: p, Src: src}.Rand())
+	// The draw is a float64; above 2^53 it can round past n (and past
+	// the int64 range at n near 2^63), so it is cut at n.
+	v := distuv.Binomial{N: float64(n), P: p, Src: src}.Rand()
+	if !(v < float64(n)) {
+		return n
+	}
+	return int64(v)
 }
 
 // Resample draws a bootstrap replicate of c: Distinct() units drawn with
@@ -30,7 +36,23 @@ func binomial(src rand.Source, n int64, p float64) int64 {
 // Multinomial(D; n_j/D) (Efron 1979 bootstrap of the units, as used for
 // species-richness intervals by Chao et al.). The replicate has the same
 // number of distinct units as c but a random number of reads.
+//
+// A draw whose reads would overflow int64 (possible only for tables within
+// a few standard deviations of 2^63 reads, never for real data) is drawn
+// again, which conditions the multinomial on a representable total;
+// after resampleTries such draws c itself is returned.
 func Resample(c Counts, rng *rand.Rand) Counts {
+	for try := 0; try < resampleTries; try++ {
+		if out, ok := resampleOnce(c, rng); ok {
+			return out
+		}
+	}
+	return c
+}
+
+const resampleTries = 64
+
+func resampleOnce(c Counts, rng *rand.Rand) (Counts, bool) {
 	left := c.distinct
 	mass := c.distinct
 	out := Counts{classes: make([]Class, 0, len(c.classes))}
@@ -44,12 +66,15 @@ func Resample(c Counts, rng *rand.Rand) Counts {
 		left -= k
 		mass -= cl.Units
 		if k > 0 {
+			if k > (math.MaxInt64-out.reads)/cl.Times {
+				return Counts{}, false
+			}
 			out.classes = append(out.classes, Class{Times: cl.Times, Units: k})
 			out.reads += k * cl.Times
 			out.distinct += k
 		}
 	}
-	return out
+	return out, true
 }
 
 // Thin keeps each read independently with probability f (binomial

@@ -93,3 +93,31 @@ func TestThinHugeClasses(t *testing.T) {
 		t.Errorf("distinct %d, want between %d and %d", d, int64(1_000_000_000_004), c.Distinct())
 	}
 }
+
+// TestResampleHuge: tables near the int64 limit of reads resample to
+// valid tables (no negative units, no overflowed reads), and binomial
+// never returns more than n (float64 draws round above 2^53).
+func TestResampleHuge(t *testing.T) {
+	c, err := NewCounts([]Class{{1, 2_300_000_000_000_000_000}, {200_000_000_000_000_000, 11}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k := uint64(0); k < 200; k++ {
+		rc := Resample(c, newRand(9, k))
+		if rc.Reads() <= 0 || rc.Distinct() != c.Distinct() {
+			t.Fatalf("replicate %d: reads %d distinct %d", k, rc.Reads(), rc.Distinct())
+		}
+		for _, cl := range rc.Classes() {
+			if cl.Units <= 0 {
+				t.Fatalf("replicate %d: class %+v", k, cl)
+			}
+		}
+	}
+	for _, n := range []int64{1<<53 + 1, math.MaxInt64 - 1, math.MaxInt64} {
+		for k := uint64(0); k < 50; k++ {
+			if v := binomial(newRand(3, k), n, 0.999999); v > n || v < 0 {
+				t.Fatalf("binomial(%d) = %d", n, v)
+			}
+		}
+	}
+}

@@ -24,14 +24,22 @@ var nullCell = cell{tsv: "", json: "null"}
 
 func intCell(v int64) cell { s := strconv.FormatInt(v, 10); return cell{s, s} }
 
-// countCell formats an expected number of units (one decimal).
+// countCell formats an expected number of units: one decimal, or from
+// 1e15 on (beyond which a float64's digits past the 16th are noise, and
+// beyond any real library) ten significant digits in exponent form, so
+// that no digit is printed that the value does not hold.
 func countCell(v float64) cell {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return nullCell
 	}
 	s := strconv.FormatFloat(v, 'f', 1, 64)
+	if math.Abs(v) >= countExpFrom {
+		s = strconv.FormatFloat(v, 'e', 9, 64)
+	}
 	return cell{s, s}
 }
+
+const countExpFrom = 1e15
 
 // fracCell formats a fraction or ratio (six significant digits).
 func fracCell(v float64) cell {
