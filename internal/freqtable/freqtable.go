@@ -324,12 +324,18 @@ func Write(w io.Writer, samples []Sample) error {
 }
 
 // CleanName keeps a name on one field of one line of a tab-separated
-// file: tabs and line breaks become spaces.
+// file: tabs and line breaks become spaces. It works on bytes, so bytes
+// that are not UTF-8 pass unchanged (mapping runes would turn every such
+// byte into U+FFFD, and two different names into one; found by FuzzRead).
 func CleanName(s string) string {
-	return strings.Map(func(r rune) rune {
-		if r == '\t' || r == '\n' || r == '\r' {
-			return ' '
+	if !strings.ContainsAny(s, "\t\n\r") {
+		return s
+	}
+	b := []byte(s)
+	for i, c := range b {
+		if c == '\t' || c == '\n' || c == '\r' {
+			b[i] = ' '
 		}
-		return r
-	}, s)
+	}
+	return string(b)
 }
