@@ -214,6 +214,9 @@ func DecodeBAM(b []byte, nRef int, rec *Record) error {
 	if err != nil {
 		return err
 	}
+	if err := parseMC(rec); err != nil {
+		return fmt.Errorf("%w: %v", ErrBadRecord, err)
+	}
 	// A CIGAR of more than 65535 operations is stored in the CG tag, with
 	// the placeholder "<l_seq>S<reference length>N" in the CIGAR field
 	// (SAM specification section 4.2.2).

@@ -49,8 +49,6 @@ type Keyer struct {
 	PairsNoMC   int64   // pairs whose mate end was taken as PNEXT (no MC tag)
 	NoMC        []int64 // PairsNoMC by library
 	MaxLeadClip int64   // longest leading clip (S+H) of a forward read seen
-
-	mc []CigarOp
 }
 
 // Skip flags: unmapped, secondary, QC-failed, supplementary (DESIGN.md).
@@ -60,9 +58,10 @@ const skipFlags = FlagUnmapped | FlagSecondary | FlagQCFail | FlagSupplementary
 // Alignment returns the fragment rec starts, if any: rec must be primary,
 // mapped, not QC-failed, with MAPQ at least MinMapQ; of a pair with both
 // mates mapped only one record starts the fragment (the mate at the lower
-// unclipped end when the MC tag gives the mate's end, else the
-// first-in-pair record), whose key holds both unclipped ends as an
-// unordered pair; a record whose mate is unmapped is a single-end fragment.
+// raw position; first-in-pair on a tie), whose key holds both
+// unclipped ends as an unordered pair; a record whose mate is unmapped is
+// a single-end fragment. rec.MateCigar must hold rec.MC parsed (the
+// readers do this).
 func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 	if rec.Flags&skipFlags != 0 || int(rec.MapQ) < k.Opt.MinMapQ || rec.Ref < 0 || rec.Pos < 0 {
 		k.Skipped++
@@ -95,35 +94,29 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 	read2 := rec.Flags&FlagRead2 != 0 && rec.Flags&FlagRead1 == 0
 	mrev := rec.Flags&FlagMateReverse != 0
 	mend := int64(rec.MatePos)
-	exact := false
-	if rec.MC != nil {
-		var err error
-		k.mc, err = ParseCigar(k.mc, rec.MC)
-		if err == nil {
-			mend = Unclipped5(rec.MatePos, k.mc, mrev)
-			exact = true
-		}
+	exact := rec.MC != nil // the readers parsed it into MateCigar
+	if exact {
+		mend = Unclipped5(rec.MatePos, rec.MateCigar, mrev)
 	}
 	a := end5{rec.Ref, end, rev}
 	b := end5{rec.MateRef, mend, mrev}
-	// Count the pair once, on the mate at the lower end (first-in-pair on
-	// a tie): every copy of a molecule is then counted on the same
-	// chromosome, whichever mate was sequenced first, so a scatter by
-	// chromosome sends all copies to one shard and merged shards equal the
-	// whole. With MC the ends are the exact unclipped ones; without it the
-	// two mates see only each other's raw positions (POS, PNEXT), which
-	// both records agree on, so the raw positions decide.
-	var lower bool
-	if exact {
-		lower = a.less(b) || (a == b && !read2)
-	} else {
-		own, mate := end5{rec.Ref, int64(rec.Pos), false}, end5{rec.MateRef, int64(rec.MatePos), false}
-		lower = own.less(mate) || (own == mate && !read2)
-		k.noMC(lib)
-	}
-	if !lower {
+	// Count the pair once, on the mate at the lower raw position (RNAME
+	// index and POS against RNEXT and PNEXT; first-in-pair on a tie). Both
+	// records of a pair carry both positions, so they agree on which one
+	// counts whatever optional tags either has (deciding on the exact ends
+	// would not be safe: one mate with MC and one without could both
+	// count the pair, or neither). Every copy of a molecule has its mates
+	// on the same two chromosomes, so all copies are counted on the one of
+	// lower index, a scatter by chromosome sends them to one shard, and
+	// merged shards equal the whole. The key holds the exact unclipped
+	// ends when MC gives the mate's CIGAR, else the mate's raw position.
+	own, mate := end5{rec.Ref, int64(rec.Pos), false}, end5{rec.MateRef, int64(rec.MatePos), false}
+	if !(own.less(mate) || (own == mate && !read2)) {
 		k.Skipped++
 		return Fragment{}, false
+	}
+	if !exact {
+		k.noMC(lib)
 	}
 	if b.less(a) {
 		a, b = b, a

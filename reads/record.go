@@ -38,7 +38,31 @@ type Record struct {
 	// Optional fields; nil when the record does not have them.
 	RG []byte
 	RX []byte
-	MC []byte
+	MC []byte // the mate's CIGAR text (MC:Z); "*" counts as absent
+
+	// MateCigar is MC parsed, set by the readers when MC is not nil.
+	MateCigar []CigarOp
+}
+
+// parseMC parses the MC tag the readers stored in rec.MC into
+// rec.MateCigar. "MC:Z:*" says the mate's CIGAR is unknown and is treated
+// as no tag. A malformed one is an error of the record: the pair's two
+// records would otherwise take different rules for which of them counts
+// the pair (DESIGN.md), counting it twice or not at all.
+func parseMC(rec *Record) error {
+	if rec.MC == nil {
+		return nil
+	}
+	if len(rec.MC) == 1 && rec.MC[0] == '*' {
+		rec.MC = nil
+		return nil
+	}
+	var err error
+	rec.MateCigar, err = ParseCigar(rec.MateCigar, rec.MC)
+	if err != nil {
+		return fmt.Errorf("MC tag (the mate's CIGAR): %w", err)
+	}
+	return nil
 }
 
 // CigarOp is one CIGAR operation in the BAM encoding: length<<4 | op.

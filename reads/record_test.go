@@ -100,3 +100,63 @@ func TestNameUMI(t *testing.T) {
 		}
 	}
 }
+
+// TestPairCountedOnce: of the two records of a pair exactly one starts the
+// fragment, whichever of them carries an MC tag (SAM specification 1.5:
+// MC is optional; a file may have it on one mate only), and the two mates
+// of one pair always agree. Positions are chosen so that the raw order
+// (POS) and the unclipped order disagree: mate 1 at POS 110 forward with
+// 20S (unclipped end 90), mate 2 at POS 100 reverse with 10M (end 109).
+func TestPairCountedOnce(t *testing.T) {
+	m1 := Record{Name: []byte("p"), Flags: FlagPaired | FlagRead1 | FlagMateReverse, Ref: 0, Pos: 110, MapQ: 60,
+		Cigar: mustCigar(t, "20S30M"), MateRef: 0, MatePos: 100}
+	m2 := Record{Name: []byte("p"), Flags: FlagPaired | FlagRead2 | FlagReverse, Ref: 0, Pos: 100, MapQ: 60,
+		Cigar: mustCigar(t, "10M"), MateRef: 0, MatePos: 110}
+	withMC := func(r Record, mc string) Record {
+		r.MC = []byte(mc)
+		if err := parseMC(&r); err != nil {
+			t.Fatal(err)
+		}
+		return r
+	}
+	for _, c := range []struct {
+		name   string
+		r1, r2 Record
+	}{
+		{"no MC", m1, m2},
+		{"both MC", withMC(m1, "10M"), withMC(m2, "20S30M")},
+		{"MC on mate 1 only", withMC(m1, "10M"), m2},
+		{"MC on mate 2 only", m1, withMC(m2, "20S30M")},
+		{"MC * on one", withMC(m1, "*"), withMC(m2, "20S30M")},
+	} {
+		var k Keyer
+		_, ok1 := k.Alignment(&c.r1, 0)
+		_, ok2 := k.Alignment(&c.r2, 0)
+		if ok1 == ok2 {
+			t.Errorf("%s: mate 1 counts %v, mate 2 counts %v; want exactly one", c.name, ok1, ok2)
+		}
+	}
+	// Both MC: the key holds the exact unclipped ends; it is the same
+	// whichever mate was read 1 (the mates swapped).
+	var k Keyer
+	r2 := withMC(m2, "20S30M")
+	f, ok := k.Alignment(&r2, 0)
+	s1, s2 := withMC(m1, "10M"), withMC(m2, "20S30M")
+	s1.Flags, s2.Flags = s1.Flags&^FlagRead1|FlagRead2, s2.Flags&^FlagRead2|FlagRead1
+	g, ok2 := k.Alignment(&s2, 0)
+	if !ok || !ok2 || f.Key != g.Key {
+		t.Errorf("mates swapped: keys %x (%v) and %x (%v) differ", f.Key, ok, g.Key, ok2)
+	}
+	if bad := (Record{MC: []byte("10Q")}); parseMC(&bad) == nil {
+		t.Error("MC 10Q parsed")
+	}
+}
+
+func mustCigar(t *testing.T, s string) []CigarOp {
+	t.Helper()
+	c, err := ParseCigar(nil, []byte(s))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return c
+}

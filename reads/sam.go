@@ -216,6 +216,9 @@ func ParseSAMLine(line []byte, h *Header, rec *Record) error {
 			rec.MC = t[5:]
 		}
 	}
+	if err := parseMC(rec); err != nil {
+		return fmt.Errorf("%w: %v", ErrBadSAM, err)
+	}
 	return nil
 }
 

@@ -159,6 +159,11 @@ put("bam_header_text.bam", bam_file(good_records(), header=bam_header(text="@HD\
 case("bam_header_text", "reads @bam_header_text.bam", 1, "BAM header text, line 2: malformed SAM header line",
      "BAM whose header text has an @SQ line with LN that is not a number")
 
+put("bam_mc.bam", bam_file(good_records(5) + [bam_record("p1", 99, 0, 3000, mate_ref=0, mate_pos=3200, tlen=220,
+                                                          aux=b"RGZrg1\x00MCZ20M5\x00")]))
+case("bam_mc", "reads @bam_mc.bam", 1, "record 6: malformed BAM record: MC tag (the mate's CIGAR): bad CIGAR",
+     "BAM pair whose MC tag ends in a number")
+
 put("bam_ltext_negative.bam", bam_file(good_records(), header=bam_header(l_text=-5)))
 case("bam_ltext_negative", "reads @bam_ltext_negative.bam", 1, "header text length -5 is invalid",
      "BAM header with l_text = -5")
@@ -238,6 +243,10 @@ case("sam_fields", "reads @sam_fields.sam", 1, "sam_fields.sam:4:",
 put("sam_pos.sam", SAM_HEAD + "r1\t0\tchr1\tx100\t60\t10M\t*\t0\t0\t*\t*\n")
 case("sam_pos", "reads @sam_pos.sam", 1, "sam_pos.sam:3: malformed SAM line: POS",
      "POS is not a number on line 3")
+
+put("sam_mc.sam", SAM_HEAD + SAM_OK + "p1\t99\tchr1\t100\t60\t10M\t=\t300\t210\t*\t*\tMC:Z:10Q\n")
+case("sam_mc", "reads @sam_mc.sam", 1, "sam_mc.sam:4: malformed SAM line: MC tag (the mate's CIGAR): bad CIGAR",
+     "a pair whose MC tag is not a CIGAR (one mate with a bad MC would count the pair by another rule)")
 
 put("sam_cigar.sam", SAM_HEAD + "r1\t0\tchr1\t100\t60\t10Q\t*\t0\t0\t*\t*\n")
 case("sam_cigar", "reads @sam_cigar.sam", 1, "sam_cigar.sam:3: bad CIGAR",

@@ -199,21 +199,17 @@ def count_alignments(path, o, samples):
                 s.add(("S", lib) + e + (umi or "",), sp)
                 continue
             read2 = a.is_read2 and not a.is_read1
-            if a.has_tag("MC"):
+            # Counted on the mate at the lower raw position (RNAME, POS
+            # against RNEXT, PNEXT; read 1 on a tie): both records of a
+            # pair see both positions, so exactly one of them counts it.
+            own, mate = (a.reference_id, a.reference_start), (a.next_reference_id, a.next_reference_start)
+            if mate < own or (mate == own and read2):
+                continue
+            if a.has_tag("MC") and a.get_tag("MC") != "*":
                 mend = unclipped5_text(a.next_reference_start, parse_cigar(a.get_tag("MC")), a.mate_is_reverse)
-                m = (a.next_reference_id, mend, a.mate_is_reverse)
-                # Counted on the mate at the lower end (read 1 on a tie), so
-                # every copy of a molecule is counted at the same end.
-                if m < e or (m == e and read2):
-                    continue
             else:
-                # Without MC both mates see only the raw positions (POS,
-                # PNEXT), on which they agree: the lower raw position counts.
-                own, mate = (a.reference_id, a.reference_start), (a.next_reference_id, a.next_reference_start)
-                if mate < own or (mate == own and read2):
-                    continue
                 mend = a.next_reference_start  # approximation stated in headroom's notes
-                m = (a.next_reference_id, mend, a.mate_is_reverse)
+            m = (a.next_reference_id, mend, a.mate_is_reverse)
             lo, hi = sorted([e, m])
             s.add(("P", lib) + lo + hi + (umi or "",), sp)
 

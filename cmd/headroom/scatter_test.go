@@ -78,8 +78,8 @@ func splitByReference(t *testing.T, path, dir string) []string {
 // TestScatterGather: the scatter/gather contract. A coordinate-sorted BAM
 // split per chromosome, each shard counted with --save-counts and the
 // shards merged, gives exactly the whole file's frequency counts. Exact
-// because each fragment is counted once, on its first-in-pair record (or
-// its only record), whose chromosome decides its shard.
+// because each fragment is counted once, on its mate at the lower
+// position (or its only record), whose chromosome decides its shard.
 func TestScatterGather(t *testing.T) {
 	if _, err := os.Stat(demoBAM); err != nil {
 		t.Skipf("demo BAM absent: %v", err)
