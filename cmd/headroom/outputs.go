@@ -49,6 +49,9 @@ func (o *outputs) commit(stdout io.Writer) error {
 		}
 		temps = append(temps, temp{tf.Name(), f.path})
 		_, werr := tf.Write(f.data)
+		if werr == nil {
+			werr = tf.Sync() // on disk before the rename makes it visible
+		}
 		cerr := tf.Close()
 		if werr == nil {
 			werr = cerr

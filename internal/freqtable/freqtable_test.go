@@ -5,6 +5,8 @@ import (
 	"compress/gzip"
 	"errors"
 	"fmt"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -180,4 +182,45 @@ func TestReadByteOrderMark(t *testing.T) {
 	if err != nil || len(got) != 1 || got[0].Name != "A" {
 		t.Fatalf("got %+v, %v; want sample A", got, err)
 	}
+}
+
+// TestWriteFuzzCorpus writes the seed corpora of FuzzRead and
+// FuzzReadPerUnit from the bad-input corpus and the demo table (run with
+// HEADROOM_WRITE_CORPUS=1; the files are committed).
+func TestWriteFuzzCorpus(t *testing.T) {
+	if os.Getenv("HEADROOM_WRITE_CORPUS") == "" {
+		t.Skip("set HEADROOM_WRITE_CORPUS=1 to rewrite testdata/fuzz seeds from ../../testdata")
+	}
+	write := func(fuzz, name string, b []byte) {
+		dir := filepath.Join("testdata", "fuzz", fuzz)
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		body := fmt.Sprintf("go test fuzz v1\n[]byte(%q)\n", b)
+		if err := os.WriteFile(filepath.Join(dir, "seed-"+name), []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	bad := filepath.Join("..", "..", "testdata", "bad")
+	for _, pat := range []struct{ glob, fuzz string }{{"counts_*", "FuzzRead"}, {"perunit_*", "FuzzReadPerUnit"}} {
+		files, _ := filepath.Glob(filepath.Join(bad, pat.glob))
+		for _, f := range files {
+			b, err := os.ReadFile(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(b) > 4096 {
+				continue // the fuzzer mutates small inputs best
+			}
+			write(pat.fuzz, filepath.Base(f), b)
+		}
+	}
+	demo, err := os.ReadFile(filepath.Join("..", "..", "testdata", "demo", "qc-pass.counts.tsv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.SplitAfter(string(demo), "\n")
+	write("FuzzRead", "demo-head", []byte(strings.Join(lines[:min(40, len(lines))], "")))
+	write("FuzzRead", "demo-head.gz", gzipped(strings.Join(lines[:min(40, len(lines))], "")))
+	write("FuzzReadPerUnit", "gz", gzipped("3\n1\n0\n12\n1\n"))
 }
