@@ -224,4 +224,7 @@ func TestClustersLargeMolecule(t *testing.T) {
 	if got := clusters(line, 100); got != 1000 {
 		t.Errorf("a line of 1000 spots: %d clusters, want 1000", got)
 	}
+	if got := clusters(line, math.MaxInt64); got != 1 {
+		t.Errorf("distance 2^63-1: %d clusters, want 1 (one tile)", got)
+	}
 }

@@ -22,6 +22,9 @@ func clusters(spots []reads.Spot, dist int64) int64 {
 	if n < 2 || dist <= 0 {
 		return int64(n)
 	}
+	// Coordinates are below 2^20, so any larger distance links a whole
+	// tile; capping it keeps dist+1 (the grid's cell) from overflowing.
+	dist = min(dist, 1<<21)
 	if n <= sweepMax {
 		return clustersSweep(spots, dist)
 	}
