@@ -88,7 +88,7 @@ func (l *libAcc) count(n int64, spots []reads.Spot, dist int64) {
 }
 
 // MinSlack is the smallest window margin of the sorted counter, in
-// reference bases beyond a key's rightmost end: twice the longest
+// reference bases beyond a key's lower end: twice the longest
 // leading clip seen, but never less than this (longer than the reads of
 // short-read platforms, so the window is right from the first record).
 const MinSlack = 1024
@@ -157,7 +157,7 @@ func (s *Sorted) Add(f reads.Fragment) {
 		}
 		return
 	}
-	if f.LastRef < s.frontRef || f.LastRef == s.frontRef && f.LastPos < s.frontPos {
+	if f.LowRef < s.frontRef || f.LowRef == s.frontRef && f.LowPos < s.frontPos {
 		s.Late++
 	}
 	var idx int32
@@ -174,7 +174,7 @@ func (s *Sorted) Add(f reads.Fragment) {
 		m.spots = append(m.spots, f.Spot)
 	}
 	s.index[f.Key] = idx
-	s.push(hent{f.LastRef, f.LastPos, idx})
+	s.push(hent{f.LowRef, f.LowPos, idx})
 	if len(s.index) > s.Peak {
 		s.Peak = len(s.index)
 	}

@@ -59,7 +59,7 @@ func randomFragments(n int, seed uint64) []reads.Fragment {
 			if r.IntN(3) == 0 {
 				s = base + reads.Spot(r.IntN(50))
 			}
-			out = append(out, reads.Fragment{Library: lib, Key: key, Spot: s, LastRef: 0, LastPos: pos})
+			out = append(out, reads.Fragment{Library: lib, Key: key, Spot: s, LowRef: 0, LowPos: pos})
 		}
 	}
 	return out
@@ -72,7 +72,7 @@ func TestSortedEqualsHashed(t *testing.T) {
 	opt := Options{OpticalDistance: 100}
 	s, h := NewSorted(opt), NewHashed(opt)
 	for _, f := range fr {
-		s.Advance(f.LastRef, f.LastPos)
+		s.Advance(f.LowRef, f.LowPos)
 		s.Add(f)
 		h.Add(f)
 	}

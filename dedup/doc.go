@@ -4,8 +4,10 @@
 //
 // Two counters share one interface. Sorted streams coordinate-sorted input:
 // a molecule is complete, and is counted, once the stream has passed the
-// rightmost end of its key by more than the longest leading clip, so
-// memory is bounded by the widest position window, not the file. Hashed
+// lower end of its key by more than the longest leading clip (the record
+// that counts a pair is its mate at the lower position, reads.Fragment),
+// so memory is bounded by the widest position window, not by the file,
+// the insert sizes or pairs whose mates lie on other chromosomes. Hashed
 // takes input in any order into a compact open-addressing table of 64-bit
 // key hashes (9 bytes a slot, at most 80 % full); past a memory budget it
 // keeps only molecules whose key hash falls in the lowest 2^-s of the hash

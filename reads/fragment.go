@@ -9,16 +9,23 @@ import (
 // Fragment is one sequenced fragment as duplicate counting sees it: the
 // hash of its molecule key, the library it belongs to, the flow-cell spot
 // of the read that represents it, and (for coordinate-sorted streaming)
-// the rightmost end of its key.
+// the lower end of its key.
 type Fragment struct {
 	Library int
 	Key     uint64 // 64-bit hash of the molecule key; never 0
 	Spot    Spot
-	// LastRef and LastPos are the reference and unclipped 5' coordinate of
-	// the key's rightmost end: a record of the same molecule cannot start
-	// after LastPos plus the longest leading clip.
-	LastRef int32
-	LastPos int64
+	// LowRef and LowPos are the reference and unclipped 5' coordinate of
+	// the key's lower end (its only end for a single read). The record
+	// that counts a copy of the same molecule cannot start after LowPos
+	// plus the longest leading clip: it is the mate at the lower raw
+	// position, and neither mate starts later than that. A reverse mate
+	// starts at or before its 5' end, a forward mate at most a leading
+	// clip after it, and the counting mate starts no later than the other.
+	// So a sorted stream can let a molecule go once it is past LowPos and
+	// a margin, however far away the mate lies (another chromosome, a
+	// long insert).
+	LowRef int32
+	LowPos int64
 }
 
 // KeyOptions say how records become molecule keys. The zero value counts
@@ -88,7 +95,7 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 	paired := rec.Flags&FlagPaired != 0 && rec.Flags&FlagMateUnmapped == 0 && rec.MateRef >= 0 && rec.MatePos >= 0
 	if !paired {
 		f.Key = finish(mix(mix(mix(mix(seed1, uint64(lib)), uint64(rec.Ref)), uint64(end)), strand(rev)), umi)
-		f.LastRef, f.LastPos = rec.Ref, end
+		f.LowRef, f.LowPos = rec.Ref, end
 		return f, true
 	}
 	read2 := rec.Flags&FlagRead2 != 0 && rec.Flags&FlagRead1 == 0
@@ -125,7 +132,7 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 	h = mix(mix(mix(h, uint64(a.pos)), strand(a.rev)), uint64(b.ref))
 	h = mix(mix(h, uint64(b.pos)), strand(b.rev))
 	f.Key = finish(h, umi)
-	f.LastRef, f.LastPos = b.ref, b.pos
+	f.LowRef, f.LowPos = a.ref, a.pos
 	return f, true
 }
 

@@ -7,6 +7,10 @@
 // binned qualities, Illumina-style names with flow-cell positions.
 //
 //	go run scripts/bench_reads_gen.go -pairs 1100000 -out /tmp/headroom-bench
+//
+// -chimeric F puts the reverse mate of a share F of the molecules on
+// another reference (as chimeric or discordant pairs are), for the memory
+// bound of the sorted path (scripts/bench_memory_stdin.sh).
 package main
 
 import (
@@ -30,6 +34,7 @@ const readLen = 150
 type pair struct {
 	name       string
 	ref        int
+	mref       int // reference of the reverse mate
 	left       int // leftmost base of the forward mate
 	right      int // leftmost base of the reverse mate
 	seq1, seq2 []byte
@@ -42,6 +47,7 @@ func main() {
 	out := flag.String("out", "/tmp/headroom-bench", "output folder")
 	seed := flag.Uint64("seed", 7, "random seed")
 	withFASTQ := flag.Bool("fastq", true, "also write the pairs as gzip FASTQ")
+	chimeric := flag.Float64("chimeric", 0, "share of molecules whose reverse mate lies on another reference")
 	flag.Parse()
 	if err := os.MkdirAll(*out, 0o755); err != nil {
 		log.Fatal(err)
@@ -89,6 +95,11 @@ func main() {
 			p.seq2[j] = bases[mr.IntN(4)]
 			p.q1[j] = quals[rng.IntN(len(quals))]
 			p.q2[j] = quals[rng.IntN(len(quals))]
+		}
+		p.mref = ref
+		if *chimeric > 0 && mr.Float64() < *chimeric { // drawn last: -chimeric 0 writes the same file as before
+			p.mref = (ref + 1 + mr.IntN(len(refLens)-1)) % len(refLens)
+			p.right = 1000 + mr.IntN(refLens[p.mref]-3000)
 		}
 		if rng.IntN(10) == 0 {
 			p.clip1 = 1 + rng.IntN(10)
@@ -138,17 +149,21 @@ func main() {
 		mc2, _ := sam.NewAux(sam.NewTag("MC"), sam.Cigar(c1).String())
 		rga, _ := sam.NewAux(sam.NewTag("RG"), "bench.L1")
 		tlen := p.right + readLen - p.left
-		r1, err := sam.NewRecord(p.name, refs[p.ref], refs[p.ref], pos1, p.right, tlen, 60, c1, p.seq1, qualBytes(p.q1), []sam.Aux{mc1, rga})
+		proper := sam.ProperPair
+		if p.mref != p.ref {
+			tlen, proper = 0, 0
+		}
+		r1, err := sam.NewRecord(p.name, refs[p.ref], refs[p.mref], pos1, p.right, tlen, 60, c1, p.seq1, qualBytes(p.q1), []sam.Aux{mc1, rga})
 		if err != nil {
 			log.Fatal(err)
 		}
-		r1.Flags = sam.Paired | sam.ProperPair | sam.MateReverse | sam.Read1
-		r2, err := sam.NewRecord(p.name, refs[p.ref], refs[p.ref], p.right, pos1, -tlen, 60, c2, p.seq2, qualBytes(p.q2), []sam.Aux{mc2, rga})
+		r1.Flags = sam.Paired | proper | sam.MateReverse | sam.Read1
+		r2, err := sam.NewRecord(p.name, refs[p.mref], refs[p.ref], p.right, pos1, -tlen, 60, c2, p.seq2, qualBytes(p.q2), []sam.Aux{mc2, rga})
 		if err != nil {
 			log.Fatal(err)
 		}
-		r2.Flags = sam.Paired | sam.ProperPair | sam.Reverse | sam.Read2
-		recs = append(recs, rec{p.ref, pos1, r1}, rec{p.ref, p.right, r2})
+		r2.Flags = sam.Paired | proper | sam.Reverse | sam.Read2
+		recs = append(recs, rec{p.ref, pos1, r1}, rec{p.mref, p.right, r2})
 	}
 	sort.SliceStable(recs, func(i, j int) bool {
 		if recs[i].ref != recs[j].ref {
