@@ -98,7 +98,6 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 		f.LowRef, f.LowPos = rec.Ref, end
 		return f, true
 	}
-	read2 := rec.Flags&FlagRead2 != 0 && rec.Flags&FlagRead1 == 0
 	mrev := rec.Flags&FlagMateReverse != 0
 	mend := int64(rec.MatePos)
 	exact := rec.MC != nil // the readers parsed it into MateCigar
@@ -108,7 +107,7 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 	a := end5{rec.Ref, end, rev}
 	b := end5{rec.MateRef, mend, mrev}
 	// Count the pair once, on the mate at the lower raw position (RNAME
-	// index and POS against RNEXT and PNEXT; first-in-pair on a tie). Both
+	// index and POS against RNEXT and PNEXT; countsTie on a tie). Both
 	// records of a pair carry both positions, so they agree on which one
 	// counts whatever optional tags either has (deciding on the exact ends
 	// would not be safe: one mate with MC and one without could both
@@ -118,7 +117,7 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 	// merged shards equal the whole. The key holds the exact unclipped
 	// ends when MC gives the mate's CIGAR, else the mate's raw position.
 	own, mate := end5{rec.Ref, int64(rec.Pos), false}, end5{rec.MateRef, int64(rec.MatePos), false}
-	if !(own.less(mate) || (own == mate && !read2)) {
+	if !(own.less(mate) || (own == mate && countsTie(rec.Flags, rev, mrev))) {
 		k.Skipped++
 		return Fragment{}, false
 	}
@@ -247,4 +246,22 @@ func finish(h uint64, umi []byte) uint64 {
 		h = 1
 	}
 	return h
+}
+
+// countsTie says whether a record whose mate starts at the same position
+// counts the pair: the first-in-pair one, or, when the flags do not say
+// which is first (0x40 and 0x80 both set or both clear, as some tools
+// write them), the forward one of a pair on opposite strands. Both records
+// see the same flags and strands mirrored, so exactly one of them counts;
+// only a pair whose flags do not say and whose mates share a strand is
+// counted on both records.
+func countsTie(flags uint16, rev, mrev bool) bool {
+	r1, r2 := flags&FlagRead1 != 0, flags&FlagRead2 != 0
+	if r1 != r2 {
+		return r1
+	}
+	if rev != mrev {
+		return !rev
+	}
+	return true
 }

@@ -147,6 +147,21 @@ func TestPairCountedOnce(t *testing.T) {
 	if !ok || !ok2 || f.Key != g.Key {
 		t.Errorf("mates swapped: keys %x (%v) and %x (%v) differ", f.Key, ok, g.Key, ok2)
 	}
+	// Mates at the same POS: read 1 counts; when the flags do not say
+	// which mate is first (both or neither set), the forward one does.
+	for _, fl := range []uint16{FlagRead1, FlagRead1 | FlagRead2, 0} {
+		t1 := Record{Name: []byte("t"), Flags: FlagPaired | FlagMateReverse | fl, Ref: 0, Pos: 500, MapQ: 60, Cigar: mustCigar(t, "30M"), MateRef: 0, MatePos: 500}
+		t2 := Record{Name: []byte("t"), Flags: FlagPaired | FlagReverse | fl, Ref: 0, Pos: 500, MapQ: 60, Cigar: mustCigar(t, "30M"), MateRef: 0, MatePos: 500}
+		if fl == FlagRead1 {
+			t2.Flags = t2.Flags&^FlagRead1 | FlagRead2
+		}
+		var k Keyer
+		_, ok1 := k.Alignment(&t1, 0)
+		_, ok2 := k.Alignment(&t2, 0)
+		if ok1 == ok2 {
+			t.Errorf("tie with flags %#x: mate 1 counts %v, mate 2 counts %v; want exactly one", fl, ok1, ok2)
+		}
+	}
 	if bad := (Record{MC: []byte("10Q")}); parseMC(&bad) == nil {
 		t.Error("MC 10Q parsed")
 	}

@@ -20,11 +20,20 @@ fi
 if [ ! -s "$dir/x4/bench.bam" ]; then
 	(cd "$here" && go run scripts/bench_reads_gen.go -pairs 4400000 -fastq=false -out "$dir/x4")
 fi
+# The same with 2% of the molecules' reverse mates on another reference
+# (chimeric/discordant pairs), which a window keyed on the mate's end
+# would hold until the stream reached that reference.
+for n in 1 4; do
+	mkdir -p "$dir/c$n"
+	if [ ! -s "$dir/c$n/bench.bam" ]; then
+		(cd "$here" && go run scripts/bench_reads_gen.go -pairs $((n * 1100000)) -fastq=false -chimeric 0.02 -out "$dir/c$n")
+	fi
+done
 echo "input            size_MB  wall_s  peak_rss_MB"
-for f in "$dir/bench.bam" "$dir/x4/bench.bam"; do
+for f in "$dir/bench.bam" "$dir/x4/bench.bam" "$dir/c1/bench.bam" "$dir/c4/bench.bam"; do
 	/usr/bin/time -v -o "$dir/mem.txt" sh -c "\"$dir/headroom\" reads --bootstrap 0 --progress never - < \"$f\" > /dev/null"
 	awk -F': ' -v f="$f" -v sz="$(du -m "$f" | cut -f1)" '
 		/Elapsed \(wall clock\)/ { n = split($2, p, ":"); w = 0; for (i = 1; i <= n; i++) w = w * 60 + p[i] }
 		/Maximum resident/ { m = $2 }
-		END { printf "%-16s %7d %7.2f %12.1f\n", (f ~ /x4/ ? "4x (stdin)" : "1x (stdin)"), sz, w, m / 1024 }' "$dir/mem.txt"
+		END { l = (f ~ /x4|c4/ ? "4x" : "1x") (f ~ /\/c[14]\// ? " 2% chimeric" : ""); printf "%-16s %7d %7.2f %12.1f\n", l, sz, w, m / 1024 }' "$dir/mem.txt"
 done

@@ -198,13 +198,20 @@ def count_alignments(path, o, samples):
             if not paired:
                 s.add(("S", lib) + e + (umi or "",), sp)
                 continue
-            read2 = a.is_read2 and not a.is_read1
             # Counted on the mate at the lower raw position (RNAME, POS
-            # against RNEXT, PNEXT; read 1 on a tie): both records of a
-            # pair see both positions, so exactly one of them counts it.
+            # against RNEXT, PNEXT): both records of a pair see both
+            # positions, so exactly one of them counts it. On a tie, read 1;
+            # when the flags do not say (both or neither set), the forward
+            # mate of a pair on opposite strands.
             own, mate = (a.reference_id, a.reference_start), (a.next_reference_id, a.next_reference_start)
-            if mate < own or (mate == own and read2):
+            if mate < own:
                 continue
+            if mate == own:
+                if a.is_read1 != a.is_read2:
+                    if a.is_read2:
+                        continue
+                elif a.is_reverse != a.mate_is_reverse and a.is_reverse:
+                    continue
             if a.has_tag("MC") and a.get_tag("MC") != "*":
                 mend = unclipped5_text(a.next_reference_start, parse_cigar(a.get_tag("MC")), a.mate_is_reverse)
             else:
