@@ -4,6 +4,7 @@ go 1.26.8
 
 require (
 	github.com/biogo/hts v1.4.5
+	github.com/klauspost/compress v1.20.4
 	github.com/schollz/progressbar/v3 v3.19.1
 	github.com/spf13/pflag v1.1.0
 	gonum.org/v1/gonum v0.17.0

@@ -3,12 +3,11 @@ package reads
 import (
 	"bufio"
 	"bytes"
-	"compress/gzip"
 	"errors"
 	"fmt"
 	"io"
 
-	"github.com/biogo/hts/bgzf"
+	"github.com/klauspost/compress/gzip"
 )
 
 // Format is a file format recognised by Open.
@@ -63,11 +62,11 @@ var (
 	ErrNoEOF     = errors.New("reads: BGZF end-of-file marker missing: the file is truncated (re-copy or regenerate it)")
 )
 
-// bgzfEOF is the 28-byte empty block that ends every BGZF file (SAM
-// specification section 4.1.2).
-// maxBlockReaders bounds the BGZF block decompressors of one stream.
+// maxBlockReaders bounds the BGZF inflating goroutines of one stream.
 const maxBlockReaders = 64
 
+// bgzfEOF is the 28-byte empty block that ends every BGZF file (SAM
+// specification section 4.1.2).
 var bgzfEOF = []byte("\x1f\x8b\x08\x04\x00\x00\x00\x00\x00\xff\x06\x00\x42\x43\x02\x00\x1b\x00\x03\x00\x00\x00\x00\x00\x00\x00\x00\x00")
 
 // Input is an opened, decompressed input stream of a known format.
@@ -77,7 +76,7 @@ type Input struct {
 
 	r     *bufio.Reader
 	dec   io.Reader // the decompressed stream under r
-	bg    *bgzf.Reader
+	bg    *bgzfReader
 	gz    *gzip.Reader
 	async *asyncReader
 	tail  *tailReader
@@ -109,23 +108,12 @@ func Open(r io.Reader, threads int) (*Input, error) {
 		if len(head) >= 16 && head[3]&4 != 0 && head[12] == 'B' && head[13] == 'C' {
 			in.Compression = BGZF
 			in.tail = &tailReader{r: raw}
-			// With threads > 1, twice as many block decompressors as
-			// threads: at most threads of them inflate at a time on a
-			// machine of that many cores, the others hold finished blocks
-			// so the parser rarely waits (measured: median wall 2.8 s
-			// against 3.4 s with threads decompressors on the 2.2M-record
-			// benchmark BAM, same CPU; BENCHMARKS.md).
-			// At most maxBlockReaders: each holds an inflater and a
-			// 64 KiB block, and more than 64 gain nothing on any machine
-			// this runs on.
-			rd := threads
-			if threads > 1 {
-				rd = min(2*threads, maxBlockReaders)
-			}
-			in.bg, err = bgzf.NewReader(in.tail, rd)
-			if err != nil {
-				return nil, wrapInflate(err)
-			}
+			// threads goroutines inflate blocks, with twice as many
+			// blocks in flight so the parser rarely waits (bgzf.go); at
+			// most maxBlockReaders, each holding an inflater and two
+			// 64 KiB buffers per block in flight: more gain nothing on
+			// any machine this runs on.
+			in.bg = newBGZFReader(in.tail, min(threads, maxBlockReaders))
 			dec = in.bg
 		} else {
 			in.Compression = Gzip
@@ -242,9 +230,9 @@ func wrapInflate(err error) error {
 		return err
 	case errors.Is(err, io.ErrUnexpectedEOF):
 		return ErrTruncated
-	case errors.Is(err, gzip.ErrChecksum):
+	case errors.Is(err, gzip.ErrChecksum), errors.Is(err, errBGZFCRC):
 		return fmt.Errorf("reads: compressed data corrupted (CRC mismatch); re-copy or regenerate the file")
-	case errors.Is(err, gzip.ErrHeader), errors.Is(err, bgzf.ErrCorrupt), errors.Is(err, bgzf.ErrNoBlockSize):
+	case errors.Is(err, gzip.ErrHeader), errors.Is(err, errBGZFHeader), errors.Is(err, errBGZFSize):
 		return fmt.Errorf("reads: compressed data corrupted (%v); re-copy or regenerate the file", err)
 	}
 	var ce interface{ Error() string }
