@@ -228,3 +228,48 @@ func TestClustersLargeMolecule(t *testing.T) {
 		t.Errorf("distance 2^63-1: %d clusters, want 1 (one tile)", got)
 	}
 }
+
+// TestHashedBudgetWithSpots: past the budget with optical detection on,
+// the subsampled counter equals an unbudgeted one fed only the molecules
+// its final shift keeps (hash-threshold subsampling is a filter on the
+// key), spots of the dropped molecules included; the result is then the
+// same frequency counts and optical duplicates, scaled by 2^shift.
+func TestHashedBudgetWithSpots(t *testing.T) {
+	r := rand.New(rand.NewPCG(12, 3))
+	opt := Options{OpticalDistance: 100}
+	small := NewHashed(Options{OpticalDistance: 100, MemoryBudget: 1 << 20})
+	var frags []reads.Fragment
+	for i := 0; i < 150000; i++ {
+		key := r.Uint64() | 1
+		base := spot(0, 1101, uint64(r.IntN(30000)), uint64(r.IntN(30000)))
+		for c := 1 + r.IntN(4); c > 0; c-- {
+			s := spot(0, 1101, uint64(r.IntN(30000)), uint64(r.IntN(30000)))
+			if r.IntN(2) == 0 {
+				s = base + reads.Spot(r.IntN(40))
+			}
+			frags = append(frags, reads.Fragment{Key: key, Spot: s})
+		}
+	}
+	for _, f := range frags {
+		small.Add(f)
+	}
+	rs := small.Results(1)[0]
+	if rs.Shift == 0 {
+		t.Fatalf("budget not reached (peak %d bytes)", small.PeakBytes)
+	}
+	ref := NewHashed(opt)
+	for _, f := range frags {
+		if f.Key>>(64-rs.Shift) == 0 {
+			ref.Add(f)
+		}
+	}
+	rr := ref.Results(1)[0]
+	if rr.OpticalDups<<rs.Shift != rs.OpticalDups || len(rr.Freq) != len(rs.Freq) {
+		t.Fatalf("optical %d<<%d vs %d; classes %d vs %d", rr.OpticalDups, rs.Shift, rs.OpticalDups, len(rr.Freq), len(rs.Freq))
+	}
+	for j := range rr.Freq {
+		if rr.Freq[j]<<rs.Shift != rs.Freq[j] {
+			t.Errorf("times %d: %d<<%d, subsampled %d", j, rr.Freq[j], rs.Shift, rs.Freq[j])
+		}
+	}
+}

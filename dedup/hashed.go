@@ -1,6 +1,10 @@
 package dedup
 
 import (
+	"cmp"
+	"slices"
+	"sort"
+
 	"headroom/reads"
 )
 
@@ -22,15 +26,29 @@ type Hashed struct {
 // whole table (peak memory stays near the steady state). A slot is the
 // key (8 bytes) and a saturating 1-byte count; counts from 255 on live in
 // over. When read names carry flow-cell spots, spot holds each molecule's
-// first spot and multi the spots of its later reads, so memory for spots
-// grows with duplicates, not with molecules.
+// first spot and more the spots of its later reads, as (key, spot) pairs
+// in arrival order in fixed-size chunks (16 bytes a duplicate read, no
+// allocation per molecule; Results sorts them by key), so memory for
+// spots grows with duplicates, not with molecules.
 type table struct {
 	segs  [segments]segment
 	spots bool
 	over  map[uint64]int64
-	multi map[uint64][]reads.Spot
-	extra int64 // estimated bytes of over and multi
+	more  [][]keySpot
+	extra int64 // estimated bytes of over and more
 }
+
+// keySpot is the spot of a molecule's read after its first.
+type keySpot struct {
+	key  uint64
+	spot reads.Spot
+}
+
+// moreChunk is the number of keySpots in one chunk of table.more (64 KiB).
+const moreChunk = 4096
+
+// keySpotBytes is the size of a keySpot.
+const keySpotBytes = 16
 
 type segment struct {
 	keys []uint64
@@ -68,7 +86,7 @@ func (h *Hashed) Advance(int32, int64) {}
 func (h *Hashed) Shift() uint { return h.shift }
 
 func newTable() *table {
-	t := &table{over: map[uint64]int64{}, multi: map[uint64][]reads.Spot{}}
+	t := &table{over: map[uint64]int64{}}
 	for i := range t.segs {
 		t.segs[i].keys = make([]uint64, initialSlots)
 		t.segs[i].cnt = make([]uint8, initialSlots)
@@ -157,14 +175,13 @@ func (h *Hashed) again(t *table, sg *segment, i uint64, f reads.Fragment) {
 		t.over[f.Key]++
 	}
 	if f.Spot != 0 && sg.spot != nil {
-		s, ok := t.multi[f.Key]
-		add := int64(8)
-		if !ok {
-			add += mapEntryBytes
+		if n := len(t.more); n == 0 || len(t.more[n-1]) == moreChunk {
+			t.more = append(t.more, make([]keySpot, 0, moreChunk))
+			t.extra += moreChunk * keySpotBytes
+			h.bytes += moreChunk * keySpotBytes
 		}
-		t.multi[f.Key] = append(s, f.Spot)
-		t.extra += add
-		h.bytes += add
+		last := &t.more[len(t.more)-1]
+		*last = append(*last, keySpot{f.Key, f.Spot})
 	}
 }
 
@@ -182,6 +199,7 @@ func (h *Hashed) makeRoom(t *table, sg *segment) {
 			for i := range u.segs {
 				h.rehash(u, &u.segs[i], len(u.segs[i].keys))
 			}
+			h.dropMore(u)
 		}
 	}
 }
@@ -208,13 +226,7 @@ func (h *Hashed) rehash(t *table, sg *segment, slots int) {
 				t.extra -= mapEntryBytes
 				h.bytes -= mapEntryBytes
 			}
-			if s, ok := t.multi[k]; ok {
-				b := mapEntryBytes + 8*int64(len(s))
-				t.extra -= b
-				h.bytes -= b
-				delete(t.multi, k)
-			}
-			continue
+			continue // its spots in t.more go in dropMore
 		}
 		i := (k >> segmentBits) & mask
 		for sg.keys[i] != 0 {
@@ -232,12 +244,51 @@ func (h *Hashed) rehash(t *table, sg *segment, slots int) {
 	}
 }
 
+// dropMore removes from t.more the spots of molecules the current shift
+// no longer keeps, compacting the chunks.
+func (h *Hashed) dropMore(t *table) {
+	var out [][]keySpot
+	for _, c := range t.more {
+		for _, ks := range c {
+			if !h.kept(ks.key) {
+				continue
+			}
+			if n := len(out); n == 0 || len(out[n-1]) == moreChunk {
+				out = append(out, make([]keySpot, 0, moreChunk))
+			}
+			out[len(out)-1] = append(out[len(out)-1], ks)
+		}
+	}
+	d := int64(len(out)-len(t.more)) * moreChunk * keySpotBytes
+	t.more = out
+	t.extra += d
+	h.bytes += d
+}
+
+// sortedMore returns t.more as one slice sorted by key (spots of one key
+// in arrival order), releasing the chunks as it copies them.
+func (t *table) sortedMore() []keySpot {
+	n := 0
+	for _, c := range t.more {
+		n += len(c)
+	}
+	all := make([]keySpot, 0, n)
+	for i, c := range t.more {
+		all = append(all, c...)
+		t.more[i] = nil
+	}
+	t.more = nil
+	slices.SortStableFunc(all, func(a, b keySpot) int { return cmp.Compare(a.key, b.key) })
+	return all
+}
+
 // Results implements Counter.
 func (h *Hashed) Results(n int) []Result {
 	h.libs = grow(h.libs, n-1)
 	var spots []reads.Spot
 	for li, t := range h.tabs {
 		l := &h.libs[li]
+		more := t.sortedMore()
 		for s := range t.segs {
 			sg := &t.segs[s]
 			for i, k := range sg.keys {
@@ -253,7 +304,10 @@ func (h *Hashed) Results(n int) []Result {
 					if sg.spot[i] != 0 {
 						spots = append(spots, sg.spot[i])
 					}
-					spots = append(spots, t.multi[k]...)
+					j := sort.Search(len(more), func(j int) bool { return more[j].key >= k })
+					for ; j < len(more) && more[j].key == k; j++ {
+						spots = append(spots, more[j].spot)
+					}
 				}
 				l.count(c, spots, h.opt.OpticalDistance)
 			}
