@@ -186,4 +186,11 @@ func TestWriteFuzzCorpus(t *testing.T) {
 	write("FuzzOpen", 2, bam[:4096])
 	gz, _ := os.ReadFile(filepath.Join(fix, "pairs_R1.fastq.gz"))
 	write("FuzzOpen", 3, gz[:2048])
+	// BGZF: small streams from biogo's writer (several blocks, the EOF
+	// block, a cut one) and the first 4 KiB of sorted.bam.
+	z := bgzfOf(t, fq[:3000], 700)
+	write("FuzzBGZF", 0, z)
+	write("FuzzBGZF", 1, z[:len(z)/2])
+	write("FuzzBGZF", 2, bgzfOf(t, nil, 1))
+	write("FuzzBGZF", 3, bam[:4096])
 }
