@@ -25,9 +25,17 @@ func (o *outputs) add(path string, data []byte) {
 }
 
 // commit writes every file, then the stdout ones.
+//
+// Only regular files are replaced by a rename. A destination that exists
+// and is not one (/dev/null, /dev/stdout, a named pipe) is written in
+// place, after every regular file is ready: renaming over /dev/null would
+// replace the device with a file for everyone on the machine. A symbolic
+// link is followed, so the file it points to is replaced and the link
+// stays.
 func (o *outputs) commit(stdout io.Writer) error {
 	type temp struct{ tmp, dst string }
 	var temps []temp
+	var special []pendingFile
 	cleanup := func() {
 		for _, t := range temps {
 			os.Remove(t.tmp)
@@ -37,17 +45,27 @@ func (o *outputs) commit(stdout io.Writer) error {
 		if f.path == "" || f.path == "-" {
 			continue
 		}
-		dir := filepath.Dir(f.path)
-		if st, err := os.Stat(f.path); err == nil && st.IsDir() {
-			cleanup()
-			return inputf(f.path, 0, "is a directory; give a file name for the output")
+		dst := f.path
+		if st, err := os.Stat(dst); err == nil {
+			if st.IsDir() {
+				cleanup()
+				return inputf(f.path, 0, "is a directory; give a file name for the output")
+			}
+			if !st.Mode().IsRegular() {
+				special = append(special, f)
+				continue
+			}
+			if real, err := filepath.EvalSymlinks(dst); err == nil {
+				dst = real
+			}
 		}
-		tf, err := os.CreateTemp(dir, "."+filepath.Base(f.path)+".tmp-*")
+		dir := filepath.Dir(dst)
+		tf, err := os.CreateTemp(dir, "."+filepath.Base(dst)+".tmp-*")
 		if err != nil {
 			cleanup()
 			return inputf(f.path, 0, "cannot create output: %v", unwrapPath(err))
 		}
-		temps = append(temps, temp{tf.Name(), f.path})
+		temps = append(temps, temp{tf.Name(), dst})
 		_, werr := tf.Write(f.data)
 		if werr == nil {
 			werr = tf.Sync() // on disk before the rename makes it visible
@@ -70,6 +88,18 @@ func (o *outputs) commit(stdout io.Writer) error {
 			return inputf(t.dst, 0, "cannot write output: %v", unwrapPath(err))
 		}
 		temps[i].tmp = "" // renamed: nothing to clean
+	}
+	for _, f := range special {
+		w, err := os.OpenFile(f.path, os.O_WRONLY, 0)
+		if err == nil {
+			_, err = w.Write(f.data)
+			if cerr := w.Close(); err == nil {
+				err = cerr
+			}
+		}
+		if err != nil {
+			return inputf(f.path, 0, "cannot write output: %v", unwrapPath(err))
+		}
 	}
 	for _, f := range o.files {
 		if f.path == "" || f.path == "-" {

@@ -8,7 +8,9 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 
 	"headroom/internal/freqtable"
 )
@@ -130,5 +132,61 @@ func TestFailedRunLeavesOldFiles(t *testing.T) {
 			names = append(names, e.Name())
 		}
 		t.Errorf("files left: %v", names)
+	}
+}
+
+// TestOutputToSpecialFilesAndLinks: an output that is not a regular file
+// (here a named pipe, as /dev/null and /dev/stdout are character devices)
+// is written in place, not replaced by a rename, which would turn
+// /dev/null into a regular file for the whole machine (this happened with
+// `-o /dev/null`, as the workflow examples write it). An output that is a
+// symbolic link replaces the file it points to and stays a link.
+func TestOutputToSpecialFilesAndLinks(t *testing.T) {
+	dir := t.TempDir()
+	fifo := filepath.Join(dir, "summary.fifo")
+	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+		t.Skipf("no named pipes here: %v", err)
+	}
+	got := make(chan []byte)
+	go func() {
+		f, err := os.Open(fifo) // blocks until the writer opens it
+		if err != nil {
+			got <- nil
+			return
+		}
+		b, _ := io.ReadAll(f)
+		f.Close()
+		got <- b
+	}()
+	target := filepath.Join(dir, "real-curve.tsv")
+	os.WriteFile(target, []byte("old\n"), 0o644)
+	link := filepath.Join(dir, "curve-link.tsv")
+	if err := os.Symlink(target, link); err != nil {
+		t.Fatal(err)
+	}
+	code, _, stderr := runCLI(t, "", "counts", "--bootstrap", "0", "-o", fifo, "--curve", link, demoCounts)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	select {
+	case b := <-got:
+		if !bytes.HasPrefix(b, []byte("sample\treads\t")) {
+			t.Errorf("the pipe received %q", b)
+		}
+	case <-time.After(30 * time.Second):
+		t.Fatal("nothing was written to the pipe (was it replaced by a file?)")
+	}
+	if st, err := os.Lstat(fifo); err != nil || st.Mode()&os.ModeNamedPipe == 0 {
+		t.Errorf("%s is no longer a named pipe: %v %v", fifo, st.Mode(), err)
+	}
+	if st, err := os.Lstat(link); err != nil || st.Mode()&os.ModeSymlink == 0 {
+		t.Errorf("%s is no longer a link: %v", link, err)
+	}
+	if b, _ := os.ReadFile(target); !bytes.HasPrefix(b, []byte("sample\treads\t")) {
+		t.Errorf("the link's target holds %q", b)
+	}
+	ents, _ := os.ReadDir(dir)
+	if len(ents) != 3 {
+		t.Errorf("%d entries in the folder, want the pipe, the link and its target", len(ents))
 	}
 }
