@@ -175,13 +175,12 @@ func (h *Hashed) again(t *table, sg *segment, i uint64, f reads.Fragment) {
 		t.over[f.Key]++
 	}
 	if f.Spot != 0 && sg.spot != nil {
-		if n := len(t.more); n == 0 || len(t.more[n-1]) == moreChunk {
-			t.more = append(t.more, make([]keySpot, 0, moreChunk))
-			t.extra += moreChunk * keySpotBytes
-			h.bytes += moreChunk * keySpotBytes
+		n := len(t.more)
+		t.more = appendChunked(t.more, keySpot{f.Key, f.Spot})
+		if d := int64(len(t.more)-n) * moreChunk * keySpotBytes; d != 0 {
+			t.extra += d
+			h.bytes += d
 		}
-		last := &t.more[len(t.more)-1]
-		*last = append(*last, keySpot{f.Key, f.Spot})
 	}
 }
 
@@ -250,19 +249,26 @@ func (h *Hashed) dropMore(t *table) {
 	var out [][]keySpot
 	for _, c := range t.more {
 		for _, ks := range c {
-			if !h.kept(ks.key) {
-				continue
+			if h.kept(ks.key) {
+				out = appendChunked(out, ks)
 			}
-			if n := len(out); n == 0 || len(out[n-1]) == moreChunk {
-				out = append(out, make([]keySpot, 0, moreChunk))
-			}
-			out[len(out)-1] = append(out[len(out)-1], ks)
 		}
 	}
 	d := int64(len(out)-len(t.more)) * moreChunk * keySpotBytes
 	t.more = out
 	t.extra += d
 	h.bytes += d
+}
+
+// appendChunked appends ks to the last chunk, starting a new one of
+// moreChunk records when it is full.
+func appendChunked(chunks [][]keySpot, ks keySpot) [][]keySpot {
+	if n := len(chunks); n == 0 || len(chunks[n-1]) == moreChunk {
+		chunks = append(chunks, make([]keySpot, 0, moreChunk))
+	}
+	last := &chunks[len(chunks)-1]
+	*last = append(*last, ks)
+	return chunks
 }
 
 // sortedMore returns t.more as one slice sorted by key (spots of one key
