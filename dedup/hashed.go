@@ -272,7 +272,8 @@ func appendChunked(chunks [][]keySpot, ks keySpot) [][]keySpot {
 }
 
 // sortedMore returns t.more as one slice sorted by key (spots of one key
-// in arrival order), releasing the chunks as it copies them.
+// in arrival order), releasing the chunks as it copies them, and keeps it
+// as t.more's only chunk.
 func (t *table) sortedMore() []keySpot {
 	n := 0
 	for _, c := range t.more {
@@ -283,8 +284,8 @@ func (t *table) sortedMore() []keySpot {
 		all = append(all, c...)
 		t.more[i] = nil
 	}
-	t.more = nil
 	slices.SortStableFunc(all, func(a, b keySpot) int { return cmp.Compare(a.key, b.key) })
+	t.more = [][]keySpot{all} // one sorted chunk: Results may be called again
 	return all
 }
 
