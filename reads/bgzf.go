@@ -151,6 +151,9 @@ func readBGZFBlock(src *bufio.Reader, b *bgzfBlock) (eof bool, err error) {
 		return false, errBGZFHeader
 	}
 	xlen := int(binary.LittleEndian.Uint16(head[10:]))
+	if 12+xlen+8 > bgzfMaxBlock {
+		return false, errBGZFHeader // no room left in a block for data
+	}
 	full, err := src.Peek(12 + xlen)
 	if len(full) < 12+xlen {
 		return false, io.ErrUnexpectedEOF

@@ -91,6 +91,7 @@ func TestBGZFDamage(t *testing.T) {
 		{"ISIZE of block 1", flip(first - 2), errBGZFSize},
 		{"no BC subfield", flip(first + 12), errBGZFHeader},
 		{"not gzip after block 1", append(bytes.Clone(z[:first]), []byte("trailing text here")...), errBGZFHeader},
+		{"XLEN larger than a block", append(bytes.Clone(z[:first]), append([]byte("\x1f\x8b\x08\x04\x00\x00\x00\x00\x00\xff\xff\xff"), make([]byte, 70000)...)...), errBGZFHeader},
 	} {
 		for _, w := range []int{1, 2, 5} {
 			got, err := readAllBGZF(c.in, w)
