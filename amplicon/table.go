@@ -3,12 +3,12 @@ package amplicon
 import (
 	"bufio"
 	"bytes"
-	"compress/gzip"
 	"errors"
 	"fmt"
 	"io"
 
 	"headroom/complexity"
+	"headroom/internal/gzin"
 )
 
 // Layout says which way a delimited table runs.
@@ -74,16 +74,9 @@ var hdf5Magic = []byte("\x89HDF\r\n\x1a\n")
 // Read reads a whole table from r: delimited text or BIOM 1.0 JSON, either
 // possibly gzip-compressed. Errors in the data are *ParseError values.
 func Read(r io.Reader, opt Options) (*Table, error) {
-	br := bufio.NewReaderSize(r, readBuf)
-	gz := false
-	if head, _ := br.Peek(2); len(head) == 2 && head[0] == 0x1f && head[1] == 0x8b {
-		zr, err := gzip.NewReader(br)
-		if err != nil {
-			return nil, perr(0, 0, ErrTruncated, "gzip header unreadable: %v", err)
-		}
-		defer zr.Close()
-		br = bufio.NewReaderSize(zr, readBuf)
-		gz = true
+	br, gz, err := gzin.Reader(r, readBuf)
+	if err != nil {
+		return nil, perr(0, 0, ErrTruncated, "gzip header unreadable: %v", err)
 	}
 	t, err := readPlain(br, opt)
 	if err != nil {
@@ -103,9 +96,9 @@ func gzipErr(line int64, err error) error {
 		return err
 	}
 	switch {
-	case errors.Is(err, gzip.ErrChecksum), errors.Is(err, gzip.ErrHeader):
+	case gzin.Damaged(err):
 		return perr(line, 0, ErrTruncated, "gzip data corrupt (%v); the file is damaged", err)
-	case errors.Is(err, io.ErrUnexpectedEOF):
+	case gzin.Cut(err):
 		return perr(line, 0, ErrTruncated, "gzip data ends early; the file was cut short")
 	}
 	return err

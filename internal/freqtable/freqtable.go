@@ -16,7 +16,6 @@ package freqtable
 import (
 	"bufio"
 	"bytes"
-	"compress/gzip"
 	"errors"
 	"fmt"
 	"io"
@@ -24,6 +23,7 @@ import (
 	"strings"
 
 	"headroom/complexity"
+	"headroom/internal/gzin"
 )
 
 // Header is the exact header line of a frequency-count table.
@@ -69,17 +69,12 @@ var (
 	ErrGzipBad  = errors.New("freqtable: gzip data is damaged (bad header or checksum)")
 )
 
-// newReader returns a buffered reader of the text of r, decompressing it
-// when it starts with the gzip magic bytes (RFC 1952; several members are
-// read one after another, as gzip -dc does).
+// newReader returns a buffered reader of the text of r, inflated when it
+// is gzip.
 func newReader(r io.Reader) (*bufio.Reader, error) {
-	br := bufio.NewReaderSize(r, 64<<10)
-	if head, _ := br.Peek(2); len(head) == 2 && head[0] == 0x1f && head[1] == 0x8b {
-		zr, err := gzip.NewReader(br)
-		if err != nil {
-			return nil, &ParseError{Line: 1, Err: readErr(err)}
-		}
-		br = bufio.NewReaderSize(zr, 64<<10)
+	br, _, err := gzin.Reader(r, 64<<10)
+	if err != nil {
+		return nil, &ParseError{Line: 1, Err: readErr(err)}
 	}
 	return br, nil
 }
@@ -87,9 +82,9 @@ func newReader(r io.Reader) (*bufio.Reader, error) {
 // readErr names a failure of reading the (possibly compressed) input.
 func readErr(err error) error {
 	switch {
-	case errors.Is(err, io.ErrUnexpectedEOF), err == io.EOF:
+	case gzin.Cut(err):
 		return ErrGzipCut
-	case errors.Is(err, gzip.ErrChecksum), errors.Is(err, gzip.ErrHeader):
+	case gzin.Damaged(err):
 		return ErrGzipBad
 	}
 	return err
