@@ -47,8 +47,7 @@ type bgzfReader struct {
 
 	// serial mode
 	one  *bgzfBlock
-	infl flate.Resetter
-	fr   io.Reader
+	infl inflater
 
 	// parallel mode
 	order chan *bgzfBlock // blocks in stream order, to Read
@@ -124,16 +123,16 @@ func (z *bgzfReader) split(jobs chan<- *bgzfBlock) {
 }
 
 func (z *bgzfReader) inflateLoop(jobs <-chan *bgzfBlock) {
-	var infl flate.Resetter
-	var fr io.Reader
+	var infl inflater
 	for b := range jobs {
-		if fr == nil {
-			fr = flate.NewReader(bytes.NewReader(nil))
-			infl = fr.(flate.Resetter)
-		}
-		b.err = inflateBGZFBlock(b, infl, fr)
+		b.err = infl.block(b)
 		b.ready <- struct{}{}
 	}
+}
+
+// inflater is one reusable deflate decoder (made on first use).
+type inflater struct {
+	fr io.Reader // also a flate.Resetter
 }
 
 // readBGZFBlock reads the next whole block into b.comp. eof is true at a
@@ -184,8 +183,8 @@ func readBGZFBlock(src *bufio.Reader, b *bgzfBlock) (eof bool, err error) {
 	return false, nil
 }
 
-// inflateBGZFBlock inflates b.comp into b.data and checks CRC32 and ISIZE.
-func inflateBGZFBlock(b *bgzfBlock, infl flate.Resetter, fr io.Reader) error {
+// block inflates b.comp into b.data and checks CRC32 and ISIZE.
+func (f *inflater) block(b *bgzfBlock) error {
 	c := b.comp
 	xlen := int(binary.LittleEndian.Uint16(c[10:]))
 	body := c[12+xlen : len(c)-8]
@@ -194,7 +193,11 @@ func inflateBGZFBlock(b *bgzfBlock, infl flate.Resetter, fr io.Reader) error {
 	if isize > bgzfMaxBlock {
 		return errBGZFSize
 	}
-	if err := infl.Reset(bytes.NewReader(body), nil); err != nil {
+	if f.fr == nil {
+		f.fr = flate.NewReader(bytes.NewReader(nil))
+	}
+	fr := f.fr
+	if err := fr.(flate.Resetter).Reset(bytes.NewReader(body), nil); err != nil {
 		return fmt.Errorf("flate: %v", err)
 	}
 	d := b.data[:isize]
@@ -244,11 +247,7 @@ func (z *bgzfReader) next() {
 		case err != nil:
 			z.err = err
 		default:
-			if z.fr == nil {
-				z.fr = flate.NewReader(bytes.NewReader(nil))
-				z.infl = z.fr.(flate.Resetter)
-			}
-			z.err = inflateBGZFBlock(z.one, z.infl, z.fr)
+			z.err = z.infl.block(z.one)
 		}
 		z.cur, z.off = z.one, 0
 		return

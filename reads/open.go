@@ -84,8 +84,8 @@ type Input struct {
 
 // Open recognises the compression and format of r from its first bytes and
 // returns the decompressed stream. threads bounds the goroutines used to
-// decompress: BGZF blocks are inflated in parallel (2*threads block
-// decompressors, for readahead), and a gzip stream is inflated ahead of
+// decompress: BGZF blocks are inflated in parallel (threads goroutines,
+// see bgzf.go), and a gzip stream is inflated ahead of
 // the parser in its own goroutine when threads > 1.
 func Open(r io.Reader, threads int) (*Input, error) {
 	if threads < 1 {
