@@ -99,21 +99,16 @@ var consumesRef = [16]bool{CigarMatch: true, CigarDel: true, CigarSkip: true, Ci
 var consumesQuery = [16]bool{CigarMatch: true, CigarIns: true, CigarSoftClip: true, CigarEqual: true, CigarMismatch: true}
 
 // RefLen returns the number of reference bases the CIGAR spans.
-func RefLen(cigar []CigarOp) int64 {
-	var n int64
-	for _, c := range cigar {
-		if consumesRef[c.Op()] {
-			n += c.Len()
-		}
-	}
-	return n
-}
+func RefLen(cigar []CigarOp) int64 { return opLen(cigar, &consumesRef) }
 
 // QueryLen returns the number of SEQ bases the CIGAR accounts for.
-func QueryLen(cigar []CigarOp) int64 {
+func QueryLen(cigar []CigarOp) int64 { return opLen(cigar, &consumesQuery) }
+
+// opLen sums the lengths of the operations that consume.
+func opLen(cigar []CigarOp, consumes *[16]bool) int64 {
 	var n int64
 	for _, c := range cigar {
-		if consumesQuery[c.Op()] {
+		if consumes[c.Op()] {
 			n += c.Len()
 		}
 	}
