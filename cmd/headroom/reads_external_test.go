@@ -1,7 +1,6 @@
 package main
 
 import (
-	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -30,16 +29,5 @@ func TestReadsDebianFiles(t *testing.T) {
 		}
 	}
 	g := loadReadsGolden(t, golden)
-	for _, c := range readsCases(t, filepath.Join("..", "..", "testdata", "reads", "external_cases.tsv")) {
-		for _, threads := range []int{1, 2} {
-			t.Run(fmt.Sprintf("%s/threads=%d", c[0], threads), func(t *testing.T) {
-				if len(g.columns[c[0]]) == 0 {
-					t.Fatalf("no golden for case %s", c[0])
-				}
-				counts, columns, _ := runReadsCase(t, ext, c[1], threads)
-				diffRows(t, "frequency counts", counts, g.counts[c[0]])
-				diffRows(t, "records/used_fragments/optical_dups", columns, g.columns[c[0]])
-			})
-		}
-	}
+	compareReadsCases(t, ext, filepath.Join("..", "..", "testdata", "reads", "external_cases.tsv"), g, nil)
 }
