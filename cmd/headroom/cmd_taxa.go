@@ -240,7 +240,7 @@ func singletonNote(c complexity.Counts, level float64) string {
 const coverageSearchMax = 1e15
 
 // taxaReadsToCoverage returns the depth in whole reads at which the
-// expected sample coverage (Chao & Jost 2012; complexity.CoverageAt)
+// expected sample coverage (Chao & Jost 2012; complexity.Curve.Coverage)
 // reaches target: below the sample's reads when it is already reached
 // there (the rarefied depth that still reaches it), above otherwise. NaN
 // for an empty sample or when the target cannot be reached.
@@ -248,11 +248,7 @@ func taxaReadsToCoverage(c complexity.Counts, target float64) float64 {
 	if c.Reads() == 0 {
 		return math.NaN()
 	}
-	r := complexity.Curve{Counts: c}.ReadsForCoverage(target, coverageSearchMax)
-	if !r.Reachable {
-		return math.NaN()
-	}
-	return r.Reads
+	return complexity.Curve{Counts: c}.ReadsFor(complexity.Target{Kind: complexity.TargetCoverage, Value: target}, coverageSearchMax)
 }
 
 // --- Rarefaction-depth advisor ------------------------------------------
@@ -328,8 +324,9 @@ func depthAdvice(tab *amplicon.Table) []byte {
 				continue
 			}
 			m := float64(row.depth)
-			cov = append(cov, complexity.CoverageAt(c, m))
-			share = append(share, complexity.RarefyMean(c, m)/float64(c.Distinct()))
+			cv := complexity.Curve{Counts: c}
+			cov = append(cov, cv.Coverage(m))
+			share = append(share, cv.Distinct(m)/float64(c.Distinct()))
 		}
 		fmt.Fprintf(&b, "%d\t%s\t%d\t%d\t%s\t%s\t%s\t%s\t%s\n", row.depth, strings.Join(row.basis, ","),
 			len(cov), len(dropped), fracCell(minOf(cov)).tsv, fracCell(median(cov)).tsv,

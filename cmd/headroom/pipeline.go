@@ -199,6 +199,18 @@ func summaryKeys(extra []string) []string {
 	return append(keys, "method", "backtest_error", "verdict", "notes")
 }
 
+// methodText is the method column: the curve's method and the total's
+// estimator, as "METHOD; total=TOTAL".
+func methodText(r complexity.Report) string {
+	switch {
+	case r.TotalMethod == "":
+		return r.Method
+	case r.Method == "":
+		return "total=" + r.TotalMethod
+	}
+	return r.Method + "; total=" + r.TotalMethod
+}
+
 // summaryCells returns the cells of summaryKeys for one sample.
 func summaryCells(e estimated) []cell {
 	r := e.rep
@@ -209,8 +221,8 @@ func summaryCells(e estimated) []cell {
 		c = append(c, x.value)
 	}
 	method := nullCell
-	if r.Method != "" {
-		method = strCell(r.Method)
+	if m := methodText(r); m != "" {
+		method = strCell(m)
 	}
 	verdict := nullCell
 	if r.Verdict != complexity.VerdictNone {

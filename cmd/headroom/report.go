@@ -149,7 +149,7 @@ func renderReport(s *shared, info runInfo, est []estimated) ([]byte, error) {
 		for _, p := range r.Predictions {
 			row = append(row, reportCell{Text: interval(p.Distinct, p.Lo, p.Hi)}, reportCell{Text: frac3(p.DupFraction)})
 		}
-		row = append(row, reportCell{Text: r.Method, Class: "l"}, reportCell{Text: pct(r.BacktestError)})
+		row = append(row, reportCell{Text: methodText(r), Class: "l"}, reportCell{Text: pct(r.BacktestError)})
 		rows = append(rows, row)
 		counts[r.Verdict]++
 		all := append(append([]string(nil), e.in.notes...), r.Notes...)
