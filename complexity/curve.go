@@ -17,7 +17,11 @@ type Curve struct {
 	Model  Model
 }
 
-// Distinct returns the expected distinct units after T reads.
+// Distinct returns D(T), the expected distinct units after T reads: at
+// or below N the rarefied mean E[S_T] = Σ_j f_j [1 − C(N−j, T)/C(N, T)]
+// (Hurlbert 1971; Heck, van Belle & Simberloff 1975), above it the Model,
+// at most D + (T − N) (each new unit takes a read). NaN for T < 0, and
+// above N without a Model.
 func (cv Curve) Distinct(T float64) float64 {
 	n := float64(cv.Counts.Reads())
 	switch {
@@ -47,14 +51,25 @@ func (cv Curve) DupFraction(T float64) float64 {
 	return 1 - cv.Distinct(T)/T
 }
 
-// Coverage returns the expected sample coverage at depth T (Chao & Jost
-// 2012; see coverageAt).
+// Coverage returns the expected sample coverage at depth T, the share of
+// the library's reads that belong to units seen by then (Chao & Jost 2012,
+// Ecology 93:2533), with f_j the units seen j times in the N reads:
+//
+//	T < N:  C_T = 1 − Σ_j (j f_j / N) C(N−j, T) / C(N−1, T)
+//	T = N:  C_N = 1 − (f1/N) [ (N−1) f1 / ((N−1) f1 + 2 f2) ]
+//	T > N:  C_T = 1 − (f1/N) [ (N−1) f1 / ((N−1) f1 + 2 f2) ]^(T−N+1)
+//
+// (f2 = 0: the bracket is (N−1)(f1−1)/((N−1)(f1−1)+2)). Above N this is
+// Chao & Jost's extrapolation from the counts alone; it does not use the
+// Model (the coverage the Model implies is 1 − MarginalYield). NaN for
+// T < 0 or an empty table.
 func (cv Curve) Coverage(T float64) float64 { return coverageAt(cv.Counts, T) }
 
-// MarginalYield returns dDistinct/dT at T: the expected share of the reads
-// just after depth T that are new units. At T = N it is the Chao & Jost
-// estimate 1 - coverage; above N it is the model's slope (central
-// difference over a relative step of yieldStep).
+// MarginalYield returns dD/dT at T: the expected share of the reads just
+// after depth T that are new units. Below N it is 1 − C_T (for rarefaction
+// exactly E[S_{T+1}] − E[S_T]; Chao & Jost 2012), at T = N the Chao & Jost
+// estimate 1 − C_N, above N the Model's slope (central difference over a
+// relative step of yieldStep). It falls from 1 towards 0 with depth.
 func (cv Curve) MarginalYield(T float64) float64 {
 	n := float64(cv.Counts.Reads())
 	if T <= n {

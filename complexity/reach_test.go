@@ -201,3 +201,25 @@ func TestReachIntervalConsistent(t *testing.T) {
 		t.Errorf("threads 3: %+v, threads 1: %+v", r3.Reach, r.Reach)
 	}
 }
+
+// BenchmarkAnalyzeReach times Analyze with 100 bootstrap replicates and
+// no reach targets, then with one target of each kind (the cost of the
+// reach step: band inversions and the replicates' own answers).
+func BenchmarkAnalyzeReach(b *testing.B) {
+	c, _ := FromMap(map[int64]int64{1: 6000, 2: 2100, 3: 900, 4: 420, 5: 210, 6: 120, 7: 70, 8: 40, 10: 30, 15: 12, 30: 3})
+	n := float64(c.Reads())
+	base := Options{Depths: []float64{2 * n, 10 * n, 100 * n}, Bootstrap: 100, Seed: 1, Gates: NoGates()}
+	targets := []Target{{TargetDistinct, 2 * float64(c.Distinct())}, {TargetDup, 0.8}, {TargetCoverage, 0.99}, {TargetYield, 0.1}}
+	for _, bc := range []struct {
+		name  string
+		reach []Target
+	}{{"none", nil}, {"four", targets}} {
+		b.Run(bc.name, func(b *testing.B) {
+			opt := base
+			opt.Reach = bc.reach
+			for b.Loop() {
+				Analyze(c, opt)
+			}
+		})
+	}
+}
