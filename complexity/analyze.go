@@ -111,8 +111,8 @@ func (t Target) String() string { return fmt.Sprintf("%v:%.6g", t.Kind, t.Value)
 // Hi are missing without bootstrap above N; Hi is +Inf when the upper
 // bound lies beyond the search horizon (the interval is [Lo, ∞)). The
 // interval of a distinct or dup target inverts the distinct interval, so
-// the two agree at every depth; coverage and yield targets take the
-// bootstrap replicates' answers (reach.go).
+// the two agree at every depth; a yield or coverage target inverts the
+// same kind of interval on the yield (reach.go).
 type Reached struct {
 	Target        Target
 	Reads, Lo, Hi float64

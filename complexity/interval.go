@@ -66,10 +66,24 @@ func interval(point float64, reps []float64, level float64, c Counts, t float64,
 	if !(delta > 0) {
 		return point, point
 	}
+	zs := logSpread(reps, d, level, modelErr(knots, t/n))
+	lo, hi = d+delta*math.Exp(-zs), d+delta*math.Exp(zs)
+	if isFinite(t) && hi > d+(t-n) {
+		hi = d + (t - n)
+	}
+	return lo, hi
+}
+
+// logSpread returns the half-width z·s of a log-scale interval, z the
+// normal quantile of level, s² = s_boot² + me², where s_boot is the
+// robust standard deviation (half the distance between the 15.87% and
+// 84.13% quantiles) of log(x − off) over the replicates x above off
+// (0 with fewer than two).
+func logSpread(reps []float64, off, level, me float64) float64 {
 	lv := make([]float64, 0, len(reps))
 	for _, x := range reps {
-		if isFinite(x) && x > d {
-			lv = append(lv, math.Log(x-d))
+		if isFinite(x) && x > off {
+			lv = append(lv, math.Log(x-off))
 		}
 	}
 	sb := 0.0
@@ -77,15 +91,9 @@ func interval(point float64, reps []float64, level float64, c Counts, t float64,
 		sort.Float64s(lv)
 		sb = (quantileSorted(lv, 0.8413447460685429) - quantileSorted(lv, 0.15865525393145707)) / 2
 	}
-	m := t / n
-	me := modelErr(knots, m)
 	s := math.Sqrt(sb*sb + me*me)
 	z := normalQuantile(1 - (1-level)/2)
-	lo, hi = d+delta*math.Exp(-z*s), d+delta*math.Exp(z*s)
-	if isFinite(t) && hi > d+(t-n) {
-		hi = d + (t - n)
-	}
-	return lo, hi
+	return z * s
 }
 
 // quantileSorted is the linear-interpolation quantile (type 7 of Hyndman &

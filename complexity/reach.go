@@ -3,7 +3,6 @@ package complexity
 import (
 	"fmt"
 	"math"
-	"sort"
 )
 
 // reach answers Options.Reach (see Reached): each target's depth on the
@@ -15,11 +14,9 @@ import (
 // the expected distinct units reaches the target, Hi the depth at which
 // the lower bound does (for dup, the other way round, since more units
 // mean fewer duplicates). So the depth interval agrees with the distinct
-// interval at every depth, model-error term included. Coverage and yield
-// have no calibrated model-error term: their interval is the percentile
-// interval of the bootstrap replicates' own answers (each replicate's
-// curve solved for the same target, in the sample's depths). Both are
-// widened, if need be, to hold the point answer.
+// interval at every depth, model-error term included. Yield and coverage
+// targets invert the same kind of interval on the yield (reachYield).
+// Both are widened, if need be, to hold the point answer.
 func (a *analysis) reach() []Reached {
 	if len(a.opt.Reach) == 0 {
 		return nil
@@ -43,10 +40,13 @@ func (a *analysis) reach() []Reached {
 			out[i] = q
 			continue
 		}
-		if t.Kind == TargetDistinct || t.Kind == TargetDup {
+		switch {
+		case t.Kind == TargetDistinct || t.Kind == TargetDup:
 			q.Lo, q.Hi = a.reachBand(t, maxT)
-		} else {
-			q.Lo, q.Hi = a.reachReplicates(t, maxT)
+		case t.Kind == TargetYield:
+			q.Lo, q.Hi = a.reachYield(t.Value, maxT)
+		case a.cv.Model != nil:
+			q.Lo, q.Hi = a.reachYield(1-t.Value, maxT) // coverage as yield 1 − C
 		}
 		if !math.IsNaN(q.Lo) {
 			q.Lo = math.Min(q.Lo, q.Reads)
@@ -144,35 +144,39 @@ func (a *analysis) reachBand(t Target, maxT float64) (lo, hi float64) {
 	return lo, hi
 }
 
-// reachReplicates is the percentile interval at Options.Level of the
-// replicates' answers to t (see reach); a replicate that does not reach
-// t by maxT counts as beyond it, and so may hi (+Inf). Missing without
-// two usable replicates.
-func (a *analysis) reachReplicates(t Target, maxT float64) (lo, hi float64) {
+// reachYield inverts the interval of the marginal yield for a yield
+// target (and a coverage one, as yield 1 − C; see reach): at depth T the
+// yield Y(T) has the log-scale interval Y·exp(∓z·s), s² = s_boot² +
+// s_model(T/N)², with s_boot the spread of log Y over the replicates (each
+// replicate's slope at T, in the sample's depths) and s_model the knots
+// of the distinct intervals, as if the model's error on the new units
+// carried over to their slope. Lo is where the lower end falls to the
+// target, Hi where the upper end does (+Inf beyond the horizon).
+func (a *analysis) reachYield(y, maxT float64) (lo, hi float64) {
 	if a.reps == nil {
 		return missing, missing
 	}
-	var ds []float64
-	for b, cv := range a.reps.curves {
-		if cv.Model == nil {
-			continue
+	n := float64(a.c.Reads())
+	buf := make([]float64, len(a.reps.curves))
+	bound := func(sign float64) func(float64) float64 {
+		return func(T float64) float64 {
+			for b, cv := range a.reps.curves {
+				buf[b] = missing
+				if cv.Model != nil {
+					buf[b] = a.reps.scale[b] * cv.MarginalYield(T*a.reps.scale[b])
+				}
+			}
+			p := a.cv.MarginalYield(T)
+			if !(p > 0) {
+				return -p
+			}
+			return -p * math.Exp(sign*logSpread(buf, 0, a.level, modelErr(a.knots, T/n)))
 		}
-		T := cv.solve(t, a.reps.scale[b], maxT)
-		if math.IsNaN(T) {
-			T = math.Inf(1)
-		}
-		ds = append(ds, T)
 	}
-	if len(ds) < 2 {
-		return missing, missing
-	}
-	sort.Float64s(ds)
-	lo, hi = quantileSorted(ds, (1-a.level)/2), quantileSorted(ds, (1+a.level)/2)
-	if math.IsNaN(lo) {
-		lo = missing
-	}
+	lo = a.cv.solveJoined(bound(-1), -y, 1, 1, maxT)
+	hi = a.cv.solveJoined(bound(1), -y, 1, 1, maxT)
 	if math.IsNaN(hi) {
-		hi = math.Inf(1) // the quantile lies beyond the horizon
+		hi = math.Inf(1) // the bound is beyond the horizon
 	}
 	return lo, hi
 }
