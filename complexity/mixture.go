@@ -93,6 +93,9 @@ type kernel struct {
 	seen []float64   // 1 − e^{−λ}
 	p    [][]float64 // p[k][j] = Poisson(j; λ_k), j = 0..J
 	tail []float64   // P(X > J | λ_k)
+	// rows15, for J = 15 only: per grid point the 17 values mixLogLik
+	// sums, P(1..15 | λ_k), P(X > 15 | λ_k), 1 − e^{−λ_k}, contiguous.
+	rows15 []float64
 }
 
 var (
@@ -121,9 +124,19 @@ func gridKernel(J int) *kernel {
 		// P(X > J) = P(J+1, λ), the lower regularised incomplete gamma.
 		k.tail[i] = mathext.GammaIncReg(float64(J+1), l)
 	}
+	if J == 15 {
+		k.rows15 = make([]float64, 0, n*row15)
+		for i := 0; i < n; i++ {
+			k.rows15 = append(k.rows15, k.p[i][1:]...)
+			k.rows15 = append(k.rows15, k.tail[i], k.seen[i])
+		}
+	}
 	kernelCache[J] = k
 	return k
 }
+
+// row15 is the stride of kernel.rows15.
+const row15 = 17
 
 // mixLogLik is the zero-truncated, censored log-likelihood of hs under the
 // grid mixture with (unnormalised) weights g on grid indices lo..hi-1:
@@ -137,24 +150,32 @@ func gridKernel(J int) *kernel {
 //
 // It is invariant to the scale of g. Returns −Inf when a class with units
 // has zero probability.
+//
+// The sums over the grid are the cost of every mixture fit; for the
+// censoring point in use (J = 15, censorJ) mixSums15 does them with the
+// accumulators in registers, same operations in the same order.
 func mixLogLik(k *kernel, hs *hist, g []float64, lo, hi int, buf []float64) float64 {
 	J := hs.J
 	pj := buf[:J+1]
-	for j := range pj {
-		pj[j] = 0
-	}
 	var pt, ps float64
-	for i := lo; i < hi; i++ {
-		w := g[i-lo]
-		if w == 0 {
-			continue
+	if J == 15 && k.rows15 != nil {
+		pt, ps = mixSums15(k.rows15, g[:hi-lo], lo, pj)
+	} else {
+		for j := range pj {
+			pj[j] = 0
 		}
-		row := k.p[i]
-		for j := 1; j <= J; j++ {
-			pj[j] += w * row[j]
+		for i := lo; i < hi; i++ {
+			w := g[i-lo]
+			if w == 0 {
+				continue
+			}
+			row := k.p[i]
+			for j := 1; j <= J; j++ {
+				pj[j] += w * row[j]
+			}
+			pt += w * k.tail[i]
+			ps += w * k.seen[i]
 		}
-		pt += w * k.tail[i]
-		ps += w * k.seen[i]
 	}
 	ll := 0.0
 	for j := 1; j <= J; j++ {
@@ -184,6 +205,45 @@ func mixLogLik(k *kernel, hs *hist, g []float64, lo, hi int, buf []float64) floa
 	return ll - hs.d*math.Log(ps)
 }
 
+// mixSums15 sets pj[j] = Σ_i g_i P(j | λ_{lo+i}), j = 1..15, and returns
+// Σ_i g_i P(X > 15 | λ) and Σ_i g_i (1 − e^{−λ}), over the rows of
+// kernel.rows15 from lo. Each sum runs over i in ascending order, as in
+// the general loop of mixLogLik (a zero weight adds an exact zero), so the
+// results are the same bits; two passes of eight and nine accumulators fit
+// the registers.
+func mixSums15(rows, g []float64, lo int, pj []float64) (pt, ps float64) {
+	rows = rows[lo*row15:]
+	var p1, p2, p3, p4, p5, p6, p7, p8 float64
+	for i, w := range g {
+		r := (*[row15]float64)(rows[i*row15:])
+		p1 += w * r[0]
+		p2 += w * r[1]
+		p3 += w * r[2]
+		p4 += w * r[3]
+		p5 += w * r[4]
+		p6 += w * r[5]
+		p7 += w * r[6]
+		p8 += w * r[7]
+	}
+	var p9, p10, p11, p12, p13, p14, p15 float64
+	for i, w := range g {
+		r := (*[row15]float64)(rows[i*row15:])
+		p9 += w * r[8]
+		p10 += w * r[9]
+		p11 += w * r[10]
+		p12 += w * r[11]
+		p13 += w * r[12]
+		p14 += w * r[13]
+		p15 += w * r[14]
+		pt += w * r[15]
+		ps += w * r[16]
+	}
+	pj = pj[:16]
+	pj[0], pj[1], pj[2], pj[3], pj[4], pj[5], pj[6], pj[7] = 0, p1, p2, p3, p4, p5, p6, p7
+	pj[8], pj[9], pj[10], pj[11], pj[12], pj[13], pj[14], pj[15] = p8, p9, p10, p11, p12, p13, p14, p15
+	return pt, ps
+}
+
 // gridModel is a fitted rate distribution on the log-rate grid:
 //
 //	D(sN) = D + a · Σ_k g_k (e^{−λ_k} − e^{−sλ_k}),
@@ -196,6 +256,7 @@ type gridModel struct {
 	n, d   float64 // reads and distinct the curve starts from
 	lam    []float64
 	g      []float64 // weights, same length as lam
+	ge     []float64 // g_k e^{−λ_k}, what Distinct and Limit sum (nil: computed there)
 	a      float64   // units per unit weight
 	params []float64 // fitted parameters (for warm starts), model-specific
 	ll     float64   // maximised log-likelihood
@@ -211,6 +272,10 @@ func newGridModel(name string, hs *hist, k *kernel, lo, hi int, g []float64, par
 			ps += g[i-lo] * k.seen[i]
 			pt += g[i-lo] * k.tail[i]
 		}
+	}
+	m.ge = make([]float64, len(m.g))
+	for i, w := range m.g {
+		m.ge[i] = w * math.Exp(-m.lam[i])
 	}
 	if hs.free {
 		m.a = (hs.d - hs.tail) / (ps - pt)
@@ -232,8 +297,15 @@ func (m *gridModel) Distinct(t float64) float64 {
 	}
 	s1 := t/m.n - 1
 	var v float64
-	for i, l := range m.lam {
-		v += m.g[i] * math.Exp(-l) * -math.Expm1(-s1*l)
+	if len(m.ge) == len(m.lam) {
+		ge := m.ge[:len(m.lam)]
+		for i, l := range m.lam {
+			v += ge[i] * -math.Expm1(-s1*l)
+		}
+	} else {
+		for i, l := range m.lam {
+			v += m.g[i] * math.Exp(-l) * -math.Expm1(-s1*l)
+		}
 	}
 	return m.d + m.a*v
 }
@@ -245,7 +317,11 @@ func (m *gridModel) Limit() (float64, bool) {
 	}
 	var s float64
 	for i, w := range m.g {
-		s += w * math.Exp(-m.lam[i])
+		if len(m.ge) == len(m.g) {
+			s += m.ge[i]
+		} else {
+			s += w * math.Exp(-m.lam[i])
+		}
 	}
 	return m.d + m.a*s, true
 }
