@@ -45,6 +45,6 @@ func fitSameFamily(m Model, c Counts, maxT float64) (Model, error) {
 			return fm, err
 		}
 	}
-	em, _, err := extrapolate(c, maxT)
+	em, _, err := extrapolateKeep(c, maxT, 0) // nothing is refitted from it
 	return em, err
 }

@@ -47,7 +47,13 @@ func (a *analysis) fit(r *Report) {
 		r.Notes = append(r.Notes, "no singletons: every unit seen at least twice, the sample looks saturated; extrapolation assumes nothing new remains")
 		use(constantModel(float64(c.Distinct())), curveSaturated)
 	default:
-		m, method, err := extrapolate(c, maxT)
+		// Without a bootstrap no family but the chosen one is refitted, so
+		// none need be kept for the reselection (select.go).
+		keep := reselectGap
+		if a.opt.Bootstrap <= 0 {
+			keep = 0
+		}
+		m, method, err := extrapolateKeep(c, maxT, keep)
 		switch {
 		case err != nil:
 			r.Notes = append(r.Notes, "no admissible extrapolation: "+err.Error())

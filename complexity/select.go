@@ -207,8 +207,17 @@ func better(a float64, ia int, b float64, ib int) bool {
 // fitted. Admissibility is checked lazily, in criterion order: the best
 // admissible fit and, for the bootstrap, every admissible fit within
 // reselectGap of it are what the selection returns, exactly as if every
-// family had been fitted and checked.
+// family had been fitted and checked. (With keep, below, the bound can use
+// the best criterion alone.)
 func extrapolate(c Counts, maxT float64) (m Model, method string, err error) {
+	return extrapolateKeep(c, maxT, reselectGap)
+}
+
+// extrapolateKeep is extrapolate keeping for the bootstrap's reselection
+// the families within keep of the chosen one's criterion. The chosen curve
+// does not depend on keep; keep = 0, for a fit no bootstrap will refit,
+// lets the saturation bound skip every family that cannot be chosen.
+func extrapolateKeep(c Counts, maxT, keep float64) (m Model, method string, err error) {
 	base := newHist(c, censorJ)
 	var fits []candFit
 	// bestAdm returns the best admissible criterion among fits (+Inf when
@@ -242,7 +251,7 @@ func extrapolate(c Counts, maxT float64) (m Model, method string, err error) {
 	for _, cd := range selCands() {
 		hs := base
 		hs.free = cd.free
-		if len(fits) > 0 && critBound(&hs, cd.params) > bestAdm()+reselectGap {
+		if len(fits) > 0 && critBound(&hs, cd.params) > bestAdm()+keep {
 			continue
 		}
 		var cm Model
@@ -274,7 +283,7 @@ func extrapolate(c Counts, maxT float64) (m Model, method string, err error) {
 			if f.adm == admYes && f.crit == bestA && sm.Model == nil {
 				sm.Model = f.m
 			}
-			if f.crit-bestA <= reselectGap && f.adm != admNo {
+			if f.crit-bestA <= keep && f.adm != admNo {
 				if f.adm == admUnknown && !isAdmissible(f.m, c, maxT) {
 					continue
 				}
