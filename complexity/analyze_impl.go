@@ -110,6 +110,12 @@ func Analyze(c Counts, opt Options) Report {
 		point[i] = cv.Distinct(t)
 	}
 
+	// The self-backtest (its own stream of the seed) also widens the
+	// intervals of a curve that fits the sample badly (adapt.go).
+	if _, trunc := cv.Model.(*trunc2Model); cv.Model != nil && r.Method != "saturated" && !trunc {
+		r.BacktestError = backtest(c, cv.Model, opt.Seed)
+	}
+
 	// Bootstrap: replicate b draws from its own stream of the seed.
 	lo := make([]float64, len(pts))
 	hi := make([]float64, len(pts))
@@ -131,7 +137,7 @@ func Analyze(c Counts, opt Options) Report {
 			for b := range reps.vals {
 				col = append(col, reps.vals[b][i])
 			}
-			lo[i], hi[i] = interval(point[i], col, level, c, pts[i])
+			lo[i], hi[i] = intervalFit(point[i], col, level, c, pts[i], r.BacktestError)
 		}
 		limits = reps.limits
 		for _, ok := range reps.ok {
@@ -165,7 +171,7 @@ func Analyze(c Counts, opt Options) Report {
 		if reached {
 			r.Total, r.TotalMethod = lim, "limit"
 			if len(limits) > 1 {
-				totLoHi[0], totLoHi[1] = interval(lim, limits, level, c, math.Inf(1))
+				totLoHi[0], totLoHi[1] = intervalFit(lim, limits, level, c, math.Inf(1), r.BacktestError)
 			}
 			r.TotalLo, r.TotalHi = totLoHi[0], totLoHi[1]
 		} else {
@@ -200,10 +206,6 @@ func Analyze(c Counts, opt Options) Report {
 			kind = KindObserved
 		}
 		r.Points = append(r.Points, CurvePoint{Reads: t, Distinct: point[i], Lo: lo[i], Hi: hi[i], Kind: kind})
-	}
-
-	if _, trunc := cv.Model.(*trunc2Model); cv.Model != nil && r.Method != "saturated" && !trunc {
-		r.BacktestError = backtest(c, cv.Model, opt.Seed)
 	}
 
 	if gated {

@@ -70,6 +70,12 @@ func modelErr(m float64) float64 {
 // D are ignored; with fewer than two usable replicates the interval
 // reflects model error only.
 func interval(point float64, reps []float64, level float64, c Counts, t float64) (lo, hi float64) {
+	return intervalFit(point, reps, level, c, t, missing)
+}
+
+// intervalFit is interval with the adaptive term s_fit of backtest error
+// bt added (adapt.go); a missing bt adds nothing.
+func intervalFit(point float64, reps []float64, level float64, c Counts, t, bt float64) (lo, hi float64) {
 	n, d := float64(c.Reads()), float64(c.Distinct())
 	delta := point - d
 	if !isFinite(point) || !(level > 0 && level < 1) {
@@ -90,7 +96,7 @@ func interval(point float64, reps []float64, level float64, c Counts, t float64)
 		sb = (quantileSorted(lv, 0.8413447460685429) - quantileSorted(lv, 0.15865525393145707)) / 2
 	}
 	m := t / n
-	s := math.Sqrt(sb*sb + modelErr(m)*modelErr(m))
+	s := math.Sqrt(sb*sb + modelErr(m)*modelErr(m) + fitErr(m, bt)*fitErr(m, bt))
 	z := normalQuantile(1 - (1-level)/2)
 	lo, hi = d+delta*math.Exp(-z*s), d+delta*math.Exp(z*s)
 	if isFinite(t) && hi > d+(t-n) {

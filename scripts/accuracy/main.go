@@ -220,6 +220,7 @@ type result struct {
 	lo, hi [4]float64
 	failed bool
 	method string
+	bt     float64 // headroom's self-backtest error (Report.BacktestError)
 }
 
 type caseResult struct {
@@ -442,6 +443,7 @@ func runHeadroom(c complexity.Counts, boot int, seed uint64) result {
 	rep := complexity.Analyze(c, complexity.Options{Depths: depths, Bootstrap: boot, Seed: seed, Threads: 1, Gates: complexity.NoGates()})
 	var r result
 	r.method = rep.Method
+	r.bt = rep.BacktestError
 	for k := range multiples {
 		if k >= len(rep.Predictions) {
 			r.failed = true
@@ -613,14 +615,15 @@ func writeCSV(w io.Writer, all []caseResult) {
 		k := strings.Fields(n)[0]
 		fmt.Fprintf(w, ",%s,%s_lo,%s_hi", k, k, k)
 	}
-	fmt.Fprintln(w, ",method,secs")
+	fmt.Fprintln(w, ",method,secs,backtest")
 	for _, cr := range all {
 		for k, m := range multiples {
 			fmt.Fprintf(w, "%s,%d,%g,%d,%d,0,%g,%.6g", families[cr.fam].name, cr.S, cr.ratio, cr.n, cr.d, m, cr.truth[k])
 			for _, r := range cr.res {
 				fmt.Fprintf(w, ",%.6g,%.6g,%.6g", r.pred[k], r.lo[k], r.hi[k])
 			}
-			fmt.Fprintf(w, ",%s,%.3f\n", cr.res[len(cr.res)-1].method, cr.secs)
+			h := cr.res[len(cr.res)-1]
+			fmt.Fprintf(w, ",%s,%.3f,%.6g\n", h.method, cr.secs, h.bt)
 		}
 	}
 }

@@ -1,0 +1,157 @@
+#!/usr/bin/python3
+"""Calibrate the adaptive interval of headroom on the calibration data.
+
+Usage:
+  /usr/bin/python3 scripts/realdata/calibrate.py SIM.csv REAL.csv [KAPPA ...]
+
+SIM.csv: `go run ./scripts/accuracy -seed 2 -boot 100 -csv SIM.csv` (the
+simulated calibration set); REAL.csv: `go run ./scripts/realdata -seed 2
+-csv REAL.csv` (only its tuning sources are used). Both must come from a
+headroom whose intervals use the knots OLD_KNOTS below, so that the
+bootstrap part of each interval can be recovered from its lower end:
+lo = D + Δ·exp(−z·s), s² = s_boot² + s_old(m)² + (κ_old·a(b, m))².
+
+The adaptive interval (complexity/adapt.go) is, on the log of the new units,
+
+  s² = s_boot² + s_model(m)² + (κ·|b|·ln(m)/ln(10))²,
+
+b the sample's self-backtest error (a 10x extrapolation of its own 10%
+thinning). For each κ this prints the knots s_model(m), the smallest values
+for which 95% of the calibration cells hold the truth (simulated cases and
+real tuning cells weighted equally), the resulting coverage per simulated
+family and per real source, and the median interval width.
+"""
+import csv
+import math
+import sys
+from collections import defaultdict
+
+Z = 1.959963984540054
+MULTS = [2.0, 10.0, 30.0, 100.0]
+OLD_KNOTS = [(1, 0), (2, 0.015), (10, 0.083), (30, 0.192), (100, 0.269)]
+OLD_KAPPA = 0.0
+
+
+def knot_interp(knots, m):
+    if m <= 1:
+        return 0.0
+    if m >= knots[-1][0]:
+        return knots[-1][1]
+    for (m0, s0), (m1, s1) in zip(knots, knots[1:]):
+        if m <= m1:
+            f = (math.log(m) - math.log(m0)) / (math.log(m1) - math.log(m0))
+            return s0 + f * (s1 - s0)
+    return knots[-1][1]
+
+
+def adapt(b, m):
+    if b is None or not math.isfinite(b):
+        return 0.0
+    return abs(b) * math.log(m) / math.log(10)
+
+
+def row(group, name, m, d, pred, lo, truth, b):
+    """One calibration cell: (group, name, m, s_boot, e) with e the
+    |log| error of the new units; None when unusable."""
+    delta = pred - d
+    if not (delta > 0 and lo > d and truth > d):
+        return (group, name, m, 0.0, math.inf, b)
+    s = -math.log((lo - d) / delta) / Z
+    sb2 = s * s - knot_interp(OLD_KNOTS, m) ** 2 - (OLD_KAPPA * adapt(b, m)) ** 2
+    sb = math.sqrt(max(sb2, 0.0))
+    e = abs(math.log((truth - d) / delta))
+    return (group, name, m, sb, e, b)
+
+
+def num(x):
+    try:
+        v = float(x)
+    except ValueError:
+        return None
+    return v if math.isfinite(v) else None
+
+
+def load(sim_path, real_path):
+    cells = []
+    with open(sim_path) as f:
+        for r in csv.DictReader(f):
+            pred, lo = num(r["headroom"]), num(r["headroom_lo"])
+            if pred is None or lo is None:
+                cells.append(("sim", r["family"], float(r["mult"]), 0.0, math.inf, None))
+                continue
+            cells.append(row("sim", r["family"], float(r["mult"]), float(r["distinct"]), pred, lo,
+                             float(r["truth"]), num(r["backtest"])))
+    with open(real_path) as f:
+        for r in csv.DictReader(f):
+            if r["set"] != "tune":
+                continue
+            pred, lo = num(r["headroom"]), num(r["lo"])
+            if pred is None or lo is None:
+                cells.append(("real", r["source"], float(r["mult"]), 0.0, math.inf, None))
+                continue
+            cells.append(row("real", r["source"], float(r["mult"]), float(r["distinct"]), pred, lo,
+                             float(r["truth"]), num(r["backtest"])))
+    return cells
+
+
+def covered(c, sm, kappa):
+    _, _, m, sb, e, b = c
+    return e <= Z * math.sqrt(sb * sb + sm * sm + (kappa * adapt(b, m)) ** 2)
+
+
+def coverage(cs, sm, kappa):
+    """Equal weight to the simulated and the real group."""
+    out = []
+    for g in ("sim", "real"):
+        gc = [c for c in cs if c[0] == g]
+        if gc:
+            out.append(sum(covered(c, sm, kappa) for c in gc) / len(gc))
+    return sum(out) / len(out)
+
+
+def calibrate(cells, kappa, target=0.95):
+    knots = [(1, 0.0)]
+    for m in MULTS:
+        cs = [c for c in cells if c[2] == m]
+        lo, hi = 0.0, 5.0
+        for _ in range(50):
+            mid = (lo + hi) / 2
+            if coverage(cs, mid, kappa) >= target:
+                hi = mid
+            else:
+                lo = mid
+        knots.append((m, hi))
+    return knots
+
+
+def report(cells, kappa, knots):
+    print(f"kappa {kappa}: knots " + ", ".join(f"{{{m:g}, {s:.3f}}}" for m, s in knots))
+    by = defaultdict(lambda: [0, 0])
+    widths = []
+    for c in cells:
+        g, name, m, sb, e, b = c
+        sm = dict(knots)[m]
+        ok = covered(c, sm, kappa)
+        by[(g, name)][0] += ok
+        by[(g, name)][1] += 1
+        by[(g, "ALL")][0] += ok
+        by[(g, "ALL")][1] += 1
+        if math.isfinite(e):
+            widths.append(math.sqrt(sb * sb + sm * sm + (kappa * adapt(b, m)) ** 2))
+    widths.sort()
+    low = sorted(((v[0] / v[1], k) for k, v in by.items()))
+    print("  median s %.3f; lowest coverage: " % widths[len(widths) // 2]
+          + "; ".join(f"{k[1]} {100 * v:.0f}%" for v, k in low[:6]))
+    print("  sim all %.1f%%, real tuning all %.1f%%" % (
+        100 * by[("sim", "ALL")][0] / by[("sim", "ALL")][1], 100 * by[("real", "ALL")][0] / by[("real", "ALL")][1]))
+
+
+def main():
+    cells = load(sys.argv[1], sys.argv[2])
+    kappas = [float(x) for x in sys.argv[3:]] or [0, 0.5, 1, 2, 3, 4, 6]
+    for k in kappas:
+        report(cells, k, calibrate(cells, k))
+
+
+if __name__ == "__main__":
+    main()
