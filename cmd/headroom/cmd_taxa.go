@@ -2,15 +2,11 @@ package main
 
 import (
 	"bytes"
-	"errors"
 	"fmt"
-	"io"
 	"math"
 	"sort"
 	"strconv"
 	"strings"
-
-	"github.com/spf13/pflag"
 
 	"headroom/amplicon"
 	"headroom/complexity"
@@ -20,9 +16,7 @@ func init() {
 	register(subcommand{name: "taxa", summary: "estimate per-sample saturation and richness from a taxon count table", run: runTaxa})
 }
 
-const taxaUsage = `usage: headroom taxa [flags] TABLE
-
-Reads a taxon count table (OTU/ASV table) and estimates, for every sample,
+const taxaAbout = `Reads a taxon count table (OTU/ASV table) and estimates, for every sample,
 how many more taxa deeper sequencing would find. TABLE is tab- or
 comma-separated text (delimiter sniffed, '#' comment lines, one header row)
 with taxa as rows (default) or samples as rows, or a BIOM 1.0 JSON file
@@ -32,52 +26,38 @@ converted first (biom convert --to-tsv or --to-json).
 
 Writes one summary row per sample (TSV or JSON) to stdout or -o FILE, with
 the columns every subcommand has plus chao1 chao1_lo chao1_hi ace
-good_coverage reads_to_coverage.
-
-flags:
-%s
-exit status: 0 success, 1 bad input, 2 usage error, 3 a gate failed under --strict
-
-examples:
-  headroom taxa --min-coverage 0.95 --at 2x,50000 otu_table.tsv
-  headroom taxa --advise-depth depths.tsv --bootstrap 0 table.biom
-`
+good_coverage reads_to_coverage.`
 
 // aceRare is ACE's rare threshold (Chao et al. 2000; DESIGN.md).
 const aceRare = 10
 
 func runTaxa(a *app, args []string) error {
-	fs := pflag.NewFlagSet("taxa", pflag.ContinueOnError)
-	fs.SetOutput(io.Discard)
-	fs.SortFlags = false
-	s := addShared(fs)
-	samplesRows := fs.Bool("samples-as-rows", false, "the table has one row per sample (default: one row per taxon, unless the header says otherwise)")
-	taxaRows := fs.Bool("taxa-as-rows", false, "the table has one row per taxon, whatever the header suggests")
-	covTarget := fs.Float64("coverage-target", 0.99, "sample coverage `C` for the reads_to_coverage column")
-	advise := fs.String("advise-depth", "", "write a rarefaction-depth table to `FILE`: samples kept, coverage and richness retained at candidate depths")
-	help := fs.BoolP("help", "h", false, "show this help")
-	short := "usage: headroom taxa [flags] TABLE (see headroom taxa --help)"
-	if err := fs.Parse(args); err != nil {
-		return &exitError{code: exitUsage, msg: "taxa: " + err.Error(), usage: short}
-	}
-	if *help {
-		fmt.Fprintf(a.stdout, taxaUsage, fs.FlagUsages())
-		return nil
+	c := newCommand("taxa", "headroom taxa [flags] TABLE", taxaAbout,
+		"headroom taxa --min-coverage 0.95 --at 2x,50000 otu_table.tsv",
+		"headroom taxa --advise-depth depths.tsv --bootstrap 0 table.biom")
+	in := c.flags(groupInputs)
+	samplesRows := in.Bool("samples-as-rows", false, "the table has one row per sample (default: one row per taxon, unless the header says otherwise)")
+	taxaRows := in.Bool("taxa-as-rows", false, "the table has one row per taxon, whatever the header suggests")
+	s := addShared(c)
+	covTarget := c.flags(groupEstimation).Float64("coverage-target", 0.99, "sample coverage `C` for the reads_to_coverage column")
+	advise := c.flags(groupOutputs).String("advise-depth", "", "write a rarefaction-depth table to `FILE`: samples kept, coverage and richness retained at candidate depths")
+	if help, err := c.parse(a, args); help || err != nil {
+		return err
 	}
 	s.moreOutputs = append(s.moreOutputs, [2]string{"--advise-depth", *advise})
 	if err := s.check(); err != nil {
 		return err
 	}
 	if *samplesRows && *taxaRows {
-		return &exitError{code: exitUsage, msg: "taxa: --samples-as-rows and --taxa-as-rows contradict each other", usage: short}
+		return c.usageErr("--samples-as-rows and --taxa-as-rows contradict each other")
 	}
 	if !(*covTarget > 0 && *covTarget < 1) {
-		return usagef("taxa: --coverage-target must be between 0 and 1 (e.g. 0.99), not %v", *covTarget)
+		return c.usageErr("--coverage-target must be between 0 and 1 (e.g. 0.99), not %v", *covTarget)
 	}
-	if fs.NArg() != 1 {
-		return &exitError{code: exitUsage, msg: fmt.Sprintf("taxa: give exactly one TABLE (got %d)", fs.NArg()), usage: short}
+	if len(c.args()) != 1 {
+		return c.usageErr("give exactly one TABLE (got %d)", len(c.args()))
 	}
-	file := fs.Arg(0)
+	file := c.args()[0]
 	opt := amplicon.Options{}
 	switch {
 	case *samplesRows:
@@ -108,15 +88,7 @@ func readTaxaTable(a *app, file string, opt amplicon.Options) (*amplicon.Table, 
 	defer r.Close()
 	tab, err := amplicon.Read(r, opt)
 	if err != nil {
-		var pe *amplicon.ParseError
-		if errors.As(err, &pe) {
-			msg := pe.Msg
-			if pe.Column > 0 {
-				msg = fmt.Sprintf("column %d: %s", pe.Column, msg)
-			}
-			return nil, inputf(displayName(file), pe.Line, "%s", msg)
-		}
-		return nil, inputf(displayName(file), 0, "cannot read: %v", unwrapPath(err))
+		return nil, inputError(file, err)
 	}
 	return tab, nil
 }
