@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	_ "embed"
 	"fmt"
 	"html/template"
 	"strconv"
@@ -14,79 +15,9 @@ import (
 
 // reportTemplate is the self-contained HTML report: inline CSS and SVG, no
 // scripts, no external assets, readable when printed.
-const reportTemplate = `<!DOCTYPE html>
-<html lang="en">
-<head>
-<meta charset="utf-8">
-<meta name="viewport" content="width=device-width, initial-scale=1">
-<title>headroom report: {{.Title}}</title>
-<style>
-body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, "DejaVu Sans", sans-serif; margin: 2em auto; max-width: 1200px; padding: 0 1em; color: #1d232a; line-height: 1.45; }
-h1 { font-size: 1.5em; margin-bottom: 0.2em; }
-h2 { font-size: 1.15em; margin-top: 1.8em; border-bottom: 1px solid #d4d9de; padding-bottom: 0.2em; }
-.sub { color: #56606b; margin-top: 0; }
-.verdicts { display: flex; gap: 0.8em; flex-wrap: wrap; margin: 1em 0; }
-.chip { padding: 0.35em 0.8em; border-radius: 0.3em; font-weight: 600; border: 1px solid; }
-.pass { background: #e3f1fb; border-color: #1b4f8a; color: #123a66; }
-.warn { background: #fff1d6; border-color: #b36b00; color: #6e4200; }
-.fail { background: #f9e0e6; border-color: #8c2d5a; color: #5c1639; }
-.none { background: #eef0f2; border-color: #9aa3ad; color: #3b434c; }
-table { border-collapse: collapse; font-size: 0.88em; margin: 0.5em 0; }
-th, td { border: 1px solid #d4d9de; padding: 0.3em 0.55em; text-align: right; white-space: nowrap; }
-th { background: #f3f5f7; }
-td.l, th.l { text-align: left; }
-td.v { font-weight: 700; text-align: center; }
-.scroll { overflow-x: auto; }
-.plot svg { width: 100%; height: auto; max-width: 1100px; }
-.caution { background: #fbf7ea; border-left: 4px solid #b36b00; padding: 0.6em 1em; }
-dl.settings { display: grid; grid-template-columns: max-content auto; gap: 0.15em 1.2em; }
-dl.settings dt { color: #56606b; }
-dl.settings dd { margin: 0; font-family: ui-monospace, "DejaVu Sans Mono", monospace; }
-ul.notes li { margin-bottom: 0.3em; }
-.small { font-size: 0.85em; color: #56606b; }
-</style>
-</head>
-<body>
-<h1>headroom report: {{.Title}}</h1>
-<p class="sub">{{.Count}} sample(s) from <code>headroom {{.Command}}</code>, version {{.Version}}. Gates at {{.TargetText}}.</p>
-<div class="verdicts">
-{{range .Tally}}<span class="chip {{.Class}}">{{.Label}}: {{.N}}</span>
-{{end}}</div>
-<p class="caution"><strong>Caution.</strong> These predictions are estimates that assume deeper sequencing draws reads at random from the same library as this run. A re-prepared library, another protocol, contamination or lane effects are outside what they can know. Where they inform decisions about clinical samples, local laboratory procedures and accredited QC rules prevail.</p>
-
-<h2>Summary</h2>
-<div class="scroll"><table>
-<tr>{{range .Header}}<th{{if .Left}} class="l"{{end}}>{{.Text}}</th>{{end}}</tr>
-{{range .Rows}}<tr>{{range .}}<td{{if .Class}} class="{{.Class}}"{{end}}>{{.Text}}</td>{{end}}</tr>
-{{end}}</table></div>
-
-<h2>Saturation curves</h2>
-<div class="plot">{{.Plot}}</div>
-{{if .PlotNote}}<p class="small">{{.PlotNote}}.</p>{{end}}
-<p class="small">Solid: exact rarefaction below the observed depth (dot). Dashed: extrapolation. Shaded: the {{.Level}} interval.</p>
-
-{{if .RunNotes}}<h2>Notes on the whole run</h2>
-<ul class="notes">
-{{range .RunNotes}}<li>{{.}}</li>
-{{end}}</ul>
-{{end}}
-<h2>Notes per sample</h2>
-<ul class="notes">
-{{range .Notes}}<li><strong>{{.Name}}</strong> ({{.Verdict}}): {{.Text}}</li>
-{{else}}<li>No notes.</li>
-{{end}}</ul>
-
-<h2>Settings</h2>
-<dl class="settings">
-{{range .Settings}}<dt>{{.K}}</dt><dd>{{.V}}</dd>
-{{end}}</dl>
-
-<h2>Methods</h2>
-<p>For each sample headroom counts how many distinct units were seen exactly <i>j</i> times (<i>n<sub>j</sub></i>). Below the observed depth the curve is exact rarefaction without replacement (Hurlbert 1971) with its variance (Heck, van Belle &amp; Simberloff 1975). Above it the expected new units follow the Good–Toulmin series (Good &amp; Toulmin 1956), which diverges beyond twice the observed depth; headroom stabilises it by rational-function (Padé) approximation in continued-fraction form computed by the quotient–difference algorithm (Rutishauser 1954; Baker &amp; Graves-Morris 1996) and weighs it against Poisson-mixture fits (zero-truncated negative binomial; Poisson–lognormal) by admissibility and by a self-backtest: the observed counts are thinned to 10% of the reads, refitted, and asked to predict what was observed (column <code>backtest_error</code>). The method column names what was used. Intervals come from a bootstrap of the units (seeded, reproducible). Totals are the curve's limit where it is bounded, otherwise Chao1 bias-corrected with its log-normal interval (Chao 1984, 1987); sample coverage is the Chao &amp; Jost (2012) estimate.</p>
-<p class="small">References: Good IJ, Toulmin GH (1956) Biometrika 43:45–63. Hurlbert SH (1971) Ecology 52:577–586. Heck KL, van Belle G, Simberloff D (1975) Ecology 56:1459–1461. Rutishauser H (1954) ZAMP 5:233–251. Baker GA, Graves-Morris P (1996) Padé Approximants, 2nd ed., Cambridge. Chao A (1984) Scand J Stat 11:265–270. Chao A (1987) Biometrics 43:783–791. Chao A, Lee SM (1992) JASA 87:210–217. Shen TJ, Chao A, Lin CF (2003) Ecology 84:798–804. Chao A, Jost L (2012) Ecology 93:2533–2547. Lander ES, Waterman MS (1988) Genomics 2:231–239.</p>
-</body>
-</html>
-`
+//
+//go:embed report.html
+var reportTemplate string
 
 type reportCell struct {
 	Text  string
