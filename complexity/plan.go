@@ -104,7 +104,7 @@ func SplitBudget(curves []Curve, usable []float64, budget int64) (reads []int64,
 		if m == 0 {
 			return reads, math.NaN()
 		}
-		return apportion(x, budget), 0
+		return Apportion(x, budget), 0
 	}
 	// total(λ) decreases from ≥ B near 0 to 0 at top.
 	lo, hi := 0.0, top
@@ -128,7 +128,7 @@ func SplitBudget(curves []Curve, usable []float64, budget int64) (reads []int64,
 			x[i] *= B / sum // close the bisection's last 1e-12
 		}
 	}
-	return apportion(x, budget), level
+	return Apportion(x, budget), level
 }
 
 // planResolution is the relative width at which the bisections of
@@ -136,11 +136,11 @@ func SplitBudget(curves []Curve, usable []float64, budget int64) (reads []int64,
 // budget under 1e12 reads, and the rounding to whole reads then decides.
 const planResolution = 1e-12
 
-// apportion rounds non-negative shares summing to total to whole numbers
+// Apportion rounds non-negative shares summing to total to whole numbers
 // summing exactly to total: each gets its floor, and the reads left go one
 // each to the largest remainders (ties to the earlier sample, so the result
 // is deterministic).
-func apportion(x []float64, total int64) []int64 {
+func Apportion(x []float64, total int64) []int64 {
 	out := make([]int64, len(x))
 	var given int64
 	type rem struct {

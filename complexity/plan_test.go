@@ -101,7 +101,7 @@ func TestSplitBudgetKKT(t *testing.T) {
 
 // TestApportion: largest remainders, exact total, ties to the earlier.
 func TestApportion(t *testing.T) {
-	got := apportion([]float64{1.5, 1.5, 2.0}, 5)
+	got := Apportion([]float64{1.5, 1.5, 2.0}, 5)
 	if got[0] != 2 || got[1] != 1 || got[2] != 2 {
 		t.Errorf("apportion = %v, want [2 1 2]", got)
 	}

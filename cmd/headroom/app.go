@@ -41,6 +41,8 @@ type app struct {
 	stderr io.Writer
 	// stderrTTY reports whether stderr is a terminal (for --progress auto).
 	stderrTTY bool
+	// stdoutTTY reports whether stdout is a terminal (for the text view).
+	stdoutTTY bool
 }
 
 // subcommand is one verb of the command line.
@@ -121,6 +123,11 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
 	if f, ok := stderr.(*os.File); ok {
 		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
 			a.stderrTTY = true
+		}
+	}
+	if f, ok := stdout.(*os.File); ok {
+		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
+			a.stdoutTTY = true
 		}
 	}
 	defer func() {

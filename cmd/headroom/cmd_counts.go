@@ -29,7 +29,7 @@ func runCounts(a *app, args []string) error {
 	c := newCommand("counts", "headroom counts [flags] FILE...", countsAbout,
 		"headroom counts --at 10x,50M --bootstrap 200 --report qc.html testdata/demo/qc-pass.counts.tsv")
 	perUnit := c.flags(groupInputs).Bool("per-unit", false, "each FILE is one count per line per unit; the sample is named after the file")
-	s := addShared(c)
+	s := addShared(c, "yield:0.1")
 	if help, err := c.parse(a, args); help || err != nil {
 		return err
 	}
@@ -39,6 +39,9 @@ func runCounts(a *app, args []string) error {
 	files := c.args()
 	if len(files) == 0 {
 		return c.usageErr("no input files")
+	}
+	if err := s.checkOutputs(files); err != nil {
+		return err
 	}
 	var samples []sampleInput
 	from := map[string]string{}

@@ -41,6 +41,9 @@ func runMerge(a *app, args []string) error {
 	if len(files) == 0 {
 		return c.usageErr("no input files")
 	}
+	if err := checkOutputs([][2]string{{"-o", *output}}, files); err != nil {
+		return err
+	}
 	var (
 		order    []string
 		sums     = map[string]complexity.Counts{}

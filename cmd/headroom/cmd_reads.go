@@ -63,7 +63,7 @@ func runReads(a *app, args []string) error {
 	run := cmd.flags(groupRun)
 	run.StringVar(&c.mode, "mode", "auto", "counting: auto (window when the header says coordinate-sorted), sorted or hashed")
 	run.StringVar(&c.maxMemory, "max-memory", "4G", "memory budget of the hash tables (`SIZE`, e.g. 512M, 4G); past it molecules are subsampled by hash")
-	s := addShared(cmd)
+	s := addShared(cmd, "yield:0.1")
 	if help, err := cmd.parse(a, args); help || err != nil {
 		return err
 	}
@@ -111,6 +111,9 @@ func runReads(a *app, args []string) error {
 	}
 	if stdin > 1 {
 		return usagef("reads: standard input ('-') can be given once only")
+	}
+	if err := s.checkOutputs(c.inputs); err != nil {
+		return err
 	}
 	c.threads = s.threads
 	c.progress = s.showProgress(a)

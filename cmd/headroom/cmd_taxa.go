@@ -22,7 +22,8 @@ converted first (biom convert --to-tsv or --to-json).
 
 Writes one summary row per sample (TSV or JSON) to stdout or -o FILE, with
 the columns every subcommand has plus chao1 chao1_lo chao1_hi ace
-good_coverage reads_to_coverage.`
+good_coverage, and by default the depth at which each sample's coverage
+reaches 0.99 (--reach coverage:0.99).`
 
 // aceRare is ACE's rare threshold (Chao et al. 2000; DESIGN.md).
 const aceRare = 10
@@ -34,8 +35,7 @@ func runTaxa(a *app, args []string) error {
 	in := c.flags(groupInputs)
 	samplesRows := in.Bool("samples-as-rows", false, "the table has one row per sample (default: one row per taxon, unless the header says otherwise)")
 	taxaRows := in.Bool("taxa-as-rows", false, "the table has one row per taxon, whatever the header suggests")
-	s := addShared(c)
-	covTarget := c.flags(groupEstimation).Float64("coverage-target", 0.99, "sample coverage `C` for the reads_to_coverage column")
+	s := addShared(c, "coverage:0.99")
 	advise := c.flags(groupOutputs).String("advise-depth", "", "write a rarefaction-depth table to `FILE`: samples kept, coverage and richness retained at candidate depths")
 	if help, err := c.parse(a, args); help || err != nil {
 		return err
@@ -47,13 +47,13 @@ func runTaxa(a *app, args []string) error {
 	if *samplesRows && *taxaRows {
 		return c.usageErr("--samples-as-rows and --taxa-as-rows contradict each other")
 	}
-	if !(*covTarget > 0 && *covTarget < 1) {
-		return c.usageErr("--coverage-target must be between 0 and 1 (e.g. 0.99), not %v", *covTarget)
-	}
 	if len(c.args()) != 1 {
 		return c.usageErr("give exactly one TABLE (got %d)", len(c.args()))
 	}
 	file := c.args()[0]
+	if err := s.checkOutputs([]string{file}); err != nil {
+		return err
+	}
 	opt := amplicon.Options{}
 	switch {
 	case *samplesRows:
@@ -65,7 +65,7 @@ func runTaxa(a *app, args []string) error {
 	if err != nil {
 		return err
 	}
-	samples, runNotes := taxaSamples(tab, s.level, *covTarget)
+	samples, runNotes := taxaSamples(tab, s.level)
 	info := runInfo{command: "taxa", inputs: []string{file}, notes: runNotes}
 	if *advise != "" {
 		// Committed with the other outputs: all or nothing.
@@ -95,7 +95,7 @@ func readTaxaTable(a *app, file string, opt amplicon.Options) (*amplicon.Table, 
 // change what every sample's numbers mean (singleton filtering,
 // presence/absence, a rarefied table) are also repeated on each sample, as
 // the TSV has no other place for them.
-func taxaSamples(tab *amplicon.Table, level, covTarget float64) ([]sampleInput, []string) {
+func taxaSamples(tab *amplicon.Table, level float64) ([]sampleInput, []string) {
 	var tableNotes []string
 	nonEmpty, depleted := 0, 0
 	for _, sm := range tab.Samples {
@@ -127,15 +127,9 @@ func taxaSamples(tab *amplicon.Table, level, covTarget float64) ([]sampleInput, 
 	for i, sm := range tab.Samples {
 		c := sm.Counts
 		est, lo, hi := complexity.Chao1(c, level)
-		need := taxaReadsToCoverage(c, covTarget)
-		needCell := nullCell
-		if !math.IsNaN(need) {
-			needCell = intCell(int64(need))
-		}
 		in := sampleInput{name: sm.Name, counts: c, extra: []column{
 			{"chao1", countCell(est)}, {"chao1_lo", countCell(lo)}, {"chao1_hi", countCell(hi)},
 			{"ace", countCell(complexity.ACE(c, aceRare))}, {"good_coverage", fracCell(complexity.GoodCoverage(c))},
-			{"reads_to_coverage", needCell},
 		}}
 		in.notes = append(in.notes, tableNotes...)
 		// (A sample without reads is noted by the estimator.)
@@ -200,25 +194,4 @@ func singletonNote(c complexity.Counts, level float64) string {
 		}
 	}
 	return msg
-}
-
-// coverageSearchMax bounds the depth searched for reads_to_coverage: far
-// beyond any sequencing run, and the extrapolated coverage is in closed
-// form, so the search stays cheap.
-const coverageSearchMax = 1e15
-
-// taxaReadsToCoverage returns the depth in whole reads at which the
-// expected sample coverage (Chao & Jost 2012; complexity.CoverageAt)
-// reaches target: below the sample's reads when it is already reached
-// there (the rarefied depth that still reaches it), above otherwise. NaN
-// for an empty sample or when the target cannot be reached.
-func taxaReadsToCoverage(c complexity.Counts, target float64) float64 {
-	if c.Reads() == 0 {
-		return math.NaN()
-	}
-	r := complexity.Curve{Counts: c}.ReadsForCoverage(target, coverageSearchMax)
-	if !r.Reachable {
-		return math.NaN()
-	}
-	return r.Reads
 }

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"math"
 	"sync"
 
@@ -16,6 +17,27 @@ type sampleInput struct {
 	counts complexity.Counts
 	extra  []column
 	notes  []string
+	// sequenced is what this run bought for the sample, in reads as the
+	// run delivers them (read pairs for paired data, before any
+	// filtering); 0 means the counts' own reads (tables, counts).
+	sequenced int64
+}
+
+// bought returns the reads this run bought for the sample.
+func (in sampleInput) bought() int64 {
+	if in.sequenced > 0 {
+		return in.sequenced
+	}
+	return in.counts.Reads()
+}
+
+// usable is the share of bought reads that the curve speaks of.
+func (in sampleInput) usable() float64 {
+	b := in.bought()
+	if b == 0 {
+		return 1
+	}
+	return float64(in.counts.Reads()) / float64(b)
 }
 
 // runInfo describes the run for reports.
@@ -34,18 +56,24 @@ type runInfo struct {
 
 // estimated is one sample after estimation.
 type estimated struct {
-	in  sampleInput
-	rep complexity.Report
+	in    sampleInput
+	rep   complexity.Report
+	reach []reachAnswer
+}
+
+// pass says what one estimation pass over the samples computes.
+type pass struct {
+	curve    bool        // the curve points (--curve, --plot, --report)
+	noBoot   bool        // point estimates only (the plan's first pass)
+	extra    [][]float64 // per sample, depths predicted after the --at ones
+	progress func(done int)
 }
 
 // estimateAll runs complexity.Analyze on every sample with the shared
 // settings, in parallel over samples, results in input order.
-func estimateAll(s *shared, samples []sampleInput, wantCurve bool) []estimated {
+func estimateAll(s *shared, samples []sampleInput, p pass) []estimated {
 	out := make([]estimated, len(samples))
-	workers := s.threads
-	if workers > len(samples) {
-		workers = len(samples)
-	}
+	workers := min(s.threads, len(samples))
 	// Threads left for each sample's bootstrap: the bootstrap is seeded per
 	// replicate, so the split does not change any number.
 	inner := 1
@@ -53,36 +81,61 @@ func estimateAll(s *shared, samples []sampleInput, wantCurve bool) []estimated {
 		inner = s.threads / workers
 	}
 	jobs := make(chan int)
+	done := make(chan struct{}, len(samples))
 	var wg sync.WaitGroup
 	for w := 0; w < workers; w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			for i := range jobs {
-				out[i] = estimated{in: samples[i], rep: complexity.Analyze(samples[i].counts, s.options(samples[i].counts, wantCurve, inner))}
+				var extra []float64
+				if p.extra != nil {
+					extra = p.extra[i]
+				}
+				o := s.options(samples[i].counts, p.curve, inner, extra)
+				if p.noBoot {
+					o.Bootstrap = 0
+				}
+				e := estimated{in: samples[i], rep: complexity.Analyze(samples[i].counts, o)}
+				cv := complexity.Curve{Counts: samples[i].counts, Model: e.rep.Model}
+				for _, r := range s.reaches {
+					e.reach = append(e.reach, answerReach(r, cv))
+				}
+				out[i] = e
+				done <- struct{}{}
 			}
 		}()
 	}
-	for i := range samples {
-		jobs <- i
+	go func() {
+		for i := range samples {
+			jobs <- i
+		}
+		close(jobs)
+	}()
+	for k := range samples {
+		<-done
+		if p.progress != nil {
+			p.progress(k + 1)
+		}
 	}
-	close(jobs)
 	wg.Wait()
 	return out
 }
 
-// options builds the per-sample estimation options.
-func (s *shared) options(c complexity.Counts, wantCurve bool, threads int) complexity.Options {
+// options builds the per-sample estimation options; extra depths are
+// predicted after the --at ones.
+func (s *shared) options(c complexity.Counts, wantCurve bool, threads int, extra []float64) complexity.Options {
 	n := c.Reads()
 	o := complexity.Options{Bootstrap: s.bootstrap, Seed: s.seed, Level: s.level, Threads: threads, Gates: complexity.NoGates()}
 	for _, d := range s.depths {
 		o.Depths = append(o.Depths, d.reads(n))
 	}
+	o.Depths = append(o.Depths, extra...)
 	o.Gates.MaxDup, o.Gates.MinDistinct, o.Gates.MinCoverage = s.maxDup, s.minDistinct, s.minCoverage
 	switch {
 	case s.targetDepth != nil:
 		o.Gates.Target = s.targetDepth.reads(n)
-	case len(o.Depths) > 0:
+	case len(s.depths) > 0:
 		o.Gates.Target = o.Depths[0]
 	default:
 		o.Gates.Target = float64(n)
@@ -137,13 +190,33 @@ func curveGrid(n int64, max float64) []float64 {
 // atomically. Nothing is written unless everything rendered. With --strict
 // it returns errStrict after writing when any sample failed a gate.
 func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) error {
-	wantCurve := s.curve != "" || s.plot != "" || s.report != ""
-	est := estimateAll(s, samples, wantCurve)
+	if s.strict && !s.anyGate() {
+		fmt.Fprintln(a.stderr, "headroom: warning: --strict without a gate (--max-dup, --min-distinct, --min-coverage) can never fail a sample")
+	}
+	p := pass{curve: s.curve != "" || s.plot != "" || s.report != ""}
+	var pl *plan
+	if s.plan != "" {
+		var err error
+		if pl, err = newPlan(s, samples); err != nil {
+			return err
+		}
+		p.extra = pl.depths()
+	}
+	bar := s.bar(a, len(samples), "estimating")
+	p.progress = bar.set
+	est := estimateAll(s, samples, p)
+	bar.finish()
+	if pl != nil {
+		pl.fill(est)
+	}
 	var outs outputs
 	var summary []byte
-	if s.format == "json" {
+	switch s.resolvedFormat(a) {
+	case "json":
 		summary = writeSummaryJSON(s, info, est)
-	} else {
+	case "text":
+		summary = writeText(s, info, est, pl)
+	default:
 		summary = writeSummaryTSV(s, est)
 	}
 	outs.add(s.output, summary)
@@ -158,7 +231,7 @@ func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) e
 		outs.add(s.plot, img)
 	}
 	if s.report != "" {
-		page, err := renderReport(s, info, est)
+		page, err := renderReport(s, info, est, pl)
 		if err != nil {
 			return err
 		}
@@ -166,6 +239,9 @@ func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) e
 	}
 	if s.saveCounts != "" {
 		outs.add(s.saveCounts, writeCounts(samples))
+	}
+	if pl != nil {
+		outs.add(s.plan, pl.render(s.plan))
 	}
 	outs.files = append(outs.files, info.extra...)
 	if err := refuseOverwritingInputs(outs.files, info.inputs); err != nil {

@@ -39,7 +39,7 @@ type reportTally struct {
 }
 
 // renderReport builds the HTML page.
-func renderReport(s *shared, info runInfo, est []estimated) ([]byte, error) {
+func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, error) {
 	var svg bytes.Buffer
 	note, err := drawPlot(&svg, ".svg", s, est, 10*vg.Inch, 6*vg.Inch)
 	if err != nil {

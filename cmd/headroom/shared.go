@@ -100,15 +100,26 @@ type shared struct {
 	minCoverage float64
 	strict      bool
 	progress    string
+	reach       []string
+	plan        string
+	budget      string
+	planGoal    string
+	pool        string
 
 	// parsed
 	depths      []depthSpec
 	targetDepth *depthSpec
+	reaches     []reachSpec
+	budgetSpec  *depthSpec
+	stdoutUsed  bool // the summary goes to standard output
 }
 
 // addShared declares the flags every estimating subcommand shares, each in
 // its help group.
-func addShared(c *command) *shared {
+//
+// defaultReach is the command's --reach default (DESIGN.md: yield:0.1 for
+// reads and counts, coverage:0.99 for taxa).
+func addShared(c *command, defaultReach string) *shared {
 	s := &shared{}
 	c.gated = true
 	est := c.flags(groupEstimation)
@@ -116,8 +127,14 @@ func addShared(c *command) *shared {
 	est.IntVar(&s.bootstrap, "bootstrap", 100, "bootstrap replicates for confidence intervals (`N`, 0 = none, at most 100000)")
 	est.Uint64Var(&s.seed, "seed", 1, "random seed for the bootstrap (same seed, same output)")
 	est.Float64Var(&s.level, "level", 0.95, "confidence level of the intervals, between 0 and 1")
+	dec := c.flags(groupDecisions)
+	dec.StringSliceVar(&s.reach, "reach", []string{defaultReach}, "targets `LIST` answered as the depth that reaches them: distinct:20M or distinct:3x, dup:0.3, coverage:0.99, yield:0.05")
+	dec.StringVar(&s.plan, "plan", "", "write the next run's plan for this pool to `FILE` (TSV, or JSON for .json); needs --budget")
+	dec.StringVar(&s.budget, "budget", "", "the next run's `READS` for the whole pool, as the run delivers them (400M, or 10x this run's reads)")
+	dec.StringVar(&s.planGoal, "plan-goal", "most", "`GOAL` of the plan: most (the most distinct units for the pool) or reach (each sample to its first --reach target)")
+	dec.StringVar(&s.pool, "pool", "", "this run's pool shares: TSV `FILE` with columns sample and share (default: equal shares)")
 	out := c.flags(groupOutputs)
-	out.StringVar(&s.format, "format", "tsv", "summary format: tsv or json")
+	out.StringVar(&s.format, "format", "", "summary format: text, tsv or json (default: text on a terminal without -o, tsv otherwise)")
 	out.StringVarP(&s.output, "output", "o", "", "write the summary to `FILE` (default stdout), atomically")
 	out.StringVar(&s.curve, "curve", "", "write the long-format curve (sample reads distinct lo hi kind) to `FILE`")
 	out.StringVar(&s.plot, "plot", "", "write a saturation plot to `FILE` (.svg or .png)")
@@ -168,9 +185,38 @@ func (s *shared) check() error {
 		s.depths = append(s.depths, d)
 	}
 	switch s.format {
-	case "tsv", "json":
+	case "", "text", "tsv", "json":
 	default:
-		return usagef("--format must be tsv or json, not %q", s.format)
+		return usagef("--format must be text, tsv or json, not %q", s.format)
+	}
+	r, err := parseReachList(s.reach)
+	if err != nil {
+		return usagef("--reach: %v", err)
+	}
+	s.reaches = r
+	switch {
+	case s.plan != "" && s.budget == "":
+		return usagef("--plan needs --budget: how many reads the next run has for this pool (400M, or 10x this run's)")
+	case s.plan == "" && s.budget != "":
+		return usagef("--budget is for --plan: give --plan FILE to write the plan")
+	case s.plan == "" && s.pool != "":
+		return usagef("--pool is for --plan: give --plan FILE and --budget")
+	}
+	if s.budget != "" {
+		d, err := parseDepth(s.budget)
+		if err != nil {
+			return usagef("--budget: %v", err)
+		}
+		s.budgetSpec = &d
+	}
+	switch s.planGoal {
+	case "most":
+	case "reach":
+		if len(s.reaches) == 0 {
+			return usagef("--plan-goal reach needs a --reach target")
+		}
+	default:
+		return usagef("--plan-goal must be most or reach, not %q", s.planGoal)
 	}
 	if len(s.depths) > maxDepths {
 		return usagef("--at: %d depths; give at most %d (use --curve for a fine curve)", len(s.depths), maxDepths)
@@ -210,24 +256,33 @@ func (s *shared) check() error {
 	default:
 		return usagef("--progress must be auto, always or never, not %q", s.progress)
 	}
-	// Two outputs of one file name would overwrite each other, one of them
-	// silently lost. (Outputs to standard output, "-", follow each other.)
-	named := map[string]string{}
-	outs := append([][2]string{
-		{"-o", s.output}, {"--curve", s.curve}, {"--plot", s.plot}, {"--report", s.report}, {"--save-counts", s.saveCounts},
-	}, s.moreOutputs...)
-	for _, o := range outs {
-		flag, path := o[0], o[1]
-		if path == "" || path == "-" {
-			continue
-		}
-		p := filepath.Clean(path)
-		if prev, ok := named[p]; ok {
-			return usagef("%s and %s both write to %s; give each output its own file", prev, flag, path)
-		}
-		named[p] = flag
-	}
 	return nil
+}
+
+// checkOutputs vets the outputs before any input is read (see the
+// function of that name); inputs are the command's input files.
+func (s *shared) checkOutputs(inputs []string) error {
+	outs := append([][2]string{
+		{"-o", s.output}, {"--curve", s.curve}, {"--plot", s.plot}, {"--report", s.report}, {"--save-counts", s.saveCounts}, {"--plan", s.plan},
+	}, s.moreOutputs...)
+	return checkOutputs(outs, inputs)
+}
+
+// anyGate reports whether a QC gate was set.
+func (s *shared) anyGate() bool {
+	return !math.IsNaN(s.maxDup) || !math.IsNaN(s.minDistinct) || !math.IsNaN(s.minCoverage)
+}
+
+// resolvedFormat is the summary format: as given, else text when the
+// summary goes to a terminal, else tsv.
+func (s *shared) resolvedFormat(a *app) string {
+	if s.format != "" {
+		return s.format
+	}
+	if a.stdoutTTY && (s.output == "" || s.output == "-") {
+		return "text"
+	}
+	return "tsv"
 }
 
 // showProgress reports whether progress should be drawn on stderr.

@@ -39,6 +39,15 @@ func countCell(v float64) cell {
 
 const countExpFrom = 1e15
 
+// readsCell formats a depth answered by a reach target: whole reads.
+func readsCell(v float64) cell {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nullCell
+	}
+	t := strconv.FormatFloat(math.Ceil(v), 'f', 0, 64)
+	return cell{t, t}
+}
+
 // fracCell formats a fraction or ratio (six significant digits).
 func fracCell(v float64) cell {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
@@ -67,7 +76,7 @@ type column struct {
 // given extra keys (inserted before method) and --at labels.
 func summaryKeys(extra []string) []string {
 	keys := []string{"sample", "reads", "distinct", "dup_fraction", "singletons", "doubletons",
-		"sample_coverage", "marginal_yield", "total_est", "total_lo", "total_hi", "saturation"}
+		"sample_coverage", "marginal_yield", "total_est", "total_lo", "total_hi", "total_method", "saturation"}
 	keys = append(keys, extra...)
 	return append(keys, "method", "backtest_error", "verdict", "notes")
 }
@@ -77,23 +86,45 @@ func summaryCells(e estimated) []cell {
 	r := e.rep
 	c := []cell{strCell(e.in.name), intCell(r.Reads), intCell(r.Distinct), fracCell(r.DupFraction),
 		intCell(r.Singletons), intCell(r.Doubletons), fracCell(r.SampleCoverage), fracCell(r.MarginalYield),
-		countCell(r.Total), countCell(r.TotalLo), countCell(r.TotalHi), fracCell(r.Saturation)}
+		countCell(r.Total), countCell(r.TotalLo), countCell(r.TotalHi), optStrCell(r.TotalMethod), fracCell(r.Saturation)}
 	for _, x := range e.in.extra {
 		c = append(c, x.value)
 	}
-	method := nullCell
-	if r.Method != "" {
-		method = strCell(r.Method)
+	m, _, _ := strings.Cut(string(r.Method), "; total=")
+	if strings.HasPrefix(m, "total=") {
+		m = ""
 	}
+	method := optStrCell(m)
 	verdict := nullCell
 	if r.Verdict != complexity.VerdictNone {
 		verdict = strCell(string(r.Verdict))
 	}
-	notes := nullCell
-	if all := append(append([]string(nil), e.in.notes...), r.Notes...); len(all) > 0 {
-		notes = strCell(strings.Join(all, "; "))
+	return append(c, method, fracCell(r.BacktestError), verdict, notesCell(sampleNotes(e)))
+}
+
+// optStrCell is text, or missing when empty.
+func optStrCell(s string) cell {
+	if s == "" {
+		return nullCell
 	}
-	return append(c, method, fracCell(r.BacktestError), verdict, notes)
+	return strCell(s)
+}
+
+// notesCell holds a list of notes: joined by "; " in TSV (one cell), a
+// JSON array of strings (empty when there are none).
+func notesCell(notes []string) cell {
+	c := cell{json: "[]"}
+	if len(notes) == 0 {
+		return c
+	}
+	clean := make([]string, len(notes))
+	for i, n := range notes {
+		clean[i] = freqtable.CleanName(n)
+	}
+	c.tsv = strings.Join(clean, "; ")
+	j, _ := json.Marshal(clean)
+	c.json = string(j)
+	return c
 }
 
 func extraKeys(samples []estimated) []string {
@@ -114,12 +145,19 @@ func writeSummaryTSV(s *shared, samples []estimated) []byte {
 	for _, d := range s.depths {
 		keys = append(keys, "distinct_"+d.label, "lo_"+d.label, "hi_"+d.label, "dup_fraction_"+d.label)
 	}
+	for _, r := range s.reaches {
+		c := r.column()
+		keys = append(keys, c, "lo_"+c, "hi_"+c)
+	}
 	b.WriteString(strings.Join(keys, "\t"))
 	b.WriteByte('\n')
 	for _, e := range samples {
 		cells := summaryCells(e)
-		for _, p := range e.rep.Predictions {
+		for _, p := range e.rep.Predictions[:len(s.depths)] {
 			cells = append(cells, countCell(p.Distinct), countCell(p.Lo), countCell(p.Hi), fracCell(p.DupFraction))
+		}
+		for _, r := range e.reach {
+			cells = append(cells, readsCell(r.reads), readsCell(r.lo), readsCell(r.hi))
 		}
 		for i, c := range cells {
 			if i > 0 {
@@ -152,7 +190,7 @@ func writeSummaryJSON(s *shared, info runInfo, samples []estimated) []byte {
 			fmt.Fprintf(&b, "%q:%s,", keys[k], c.json)
 		}
 		b.WriteString("\"predictions\":[")
-		for k, p := range e.rep.Predictions {
+		for k, p := range e.rep.Predictions[:len(s.depths)] {
 			if k > 0 {
 				b.WriteByte(',')
 			}
@@ -160,6 +198,15 @@ func writeSummaryJSON(s *shared, info runInfo, samples []estimated) []byte {
 			fmt.Fprintf(&b, "{\"label\":%s,\"reads\":%s,\"distinct\":%s,\"lo\":%s,\"hi\":%s,\"dup_fraction\":%s}",
 				label, countCell(p.Reads).json, countCell(p.Distinct).json, countCell(p.Lo).json,
 				countCell(p.Hi).json, fracCell(p.DupFraction).json)
+		}
+		b.WriteString("],\"reach\":[")
+		for k, r := range e.reach {
+			if k > 0 {
+				b.WriteByte(',')
+			}
+			label, _ := json.Marshal(r.spec.label)
+			fmt.Fprintf(&b, "{\"target\":%s,\"reads\":%s,\"lo\":%s,\"hi\":%s}", label,
+				readsCell(r.reads).json, readsCell(r.lo).json, readsCell(r.hi).json)
 		}
 		b.WriteString("]}")
 	}
@@ -190,4 +237,16 @@ func writeCounts(samples []sampleInput) []byte {
 	}
 	freqtable.Write(&b, ft) // writes to memory: cannot fail
 	return b.Bytes()
+}
+
+// sampleNotes are every note on one sample: the reader's, the
+// estimator's, then the reach targets'.
+func sampleNotes(e estimated) []string {
+	all := append(append([]string(nil), e.in.notes...), e.rep.Notes...)
+	for _, r := range e.reach {
+		if r.note != "" {
+			all = append(all, r.note)
+		}
+	}
+	return all
 }
