@@ -87,13 +87,13 @@ func newPlan(s *shared, samples []sampleInput) (*plan, error) {
 			pl.notes = append(pl.notes, "no sample gains new units from more reads: the budget is split evenly and buys nothing new")
 		}
 	}
-	var weight float64
+	next2 := make([]int64, len(pl.rows))
+	now := make([]int64, len(pl.rows))
+	share := make([]float64, len(pl.rows))
 	for i := range pl.rows {
 		r := &pl.rows[i]
 		r.readsNext = next[i]
-		if r.readsNow > 0 {
-			weight += float64(r.readsNext) * r.shareNow / float64(r.readsNow)
-		}
+		next2[i], now[i], share[i] = r.readsNext, r.readsNow, r.shareNow
 		if r.action == "" {
 			r.action = "stop"
 			if r.readsNext > 0 {
@@ -104,14 +104,31 @@ func newPlan(s *shared, samples []sampleInput) (*plan, error) {
 			r.notes = append(r.notes, fmt.Sprintf("the plan takes this sample past %gx its reads, beyond the depths whose accuracy was measured", reachHorizon))
 		}
 	}
-	for i := range pl.rows {
-		r := &pl.rows[i]
-		r.poolShare = math.NaN()
-		if weight > 0 && r.readsNow > 0 {
-			r.poolShare = float64(r.readsNext) * r.shareNow / float64(r.readsNow) / weight
-		}
+	for i, p := range poolShares(next2, now, share) {
+		pl.rows[i].poolShare = p
 	}
 	return pl, nil
+}
+
+// poolShares is the share of the next pool to load for each sample: a
+// sample gave now[i] reads for share[i] of this pool, so next[i] reads
+// take next[i]·share[i]/now[i] of the same pool; normalised to sum to 1.
+// NaN for a sample that gave no reads (nothing says what its share buys).
+func poolShares(next, now []int64, share []float64) []float64 {
+	out := make([]float64, len(next))
+	var w float64
+	for i := range next {
+		if now[i] > 0 {
+			w += float64(next[i]) * share[i] / float64(now[i])
+		}
+	}
+	for i := range next {
+		out[i] = math.NaN()
+		if w > 0 && now[i] > 0 {
+			out[i] = float64(next[i]) * share[i] / float64(now[i]) / w
+		}
+	}
+	return out
 }
 
 // reachSplit gives each sample what its first --reach target needs,
