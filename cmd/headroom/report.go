@@ -5,6 +5,7 @@ import (
 	_ "embed"
 	"fmt"
 	"html/template"
+	"math"
 	"strconv"
 	"strings"
 
@@ -50,24 +51,21 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 		plotSVG = plotSVG[i:] // drop the XML prolog: inline SVG has none
 	}
 
-	// The page shows the columns a person decides by, verdict first; the
-	// TSV/JSON summary has them all.
-	head := []reportHead{{Text: "sample", Left: true}, {Text: "verdict"}, {Text: "reads"}, {Text: "distinct"},
-		{Text: "dup fraction"}, {Text: "coverage"}, {Text: "total (interval)"}, {Text: "saturation"}}
+	// The page shows the columns a person decides by, verdict first, and
+	// fits a 1,300 px page; the TSV/JSON summary has them all.
+	head := []reportHead{{Text: "sample", Left: true}, {Text: "verdict"}, {Text: "reads"}, {Text: "dup now"},
+		{Text: "distinct"}, {Text: "total (interval)"}}
 	for _, d := range s.depths {
-		head = append(head, reportHead{Text: "distinct at " + d.label + " (interval)"}, reportHead{Text: "dup at " + d.label})
+		head = append(head, reportHead{Text: "distinct at " + d.label})
 	}
-	head = append(head, reportHead{Text: "method", Left: true}, reportHead{Text: "backtest error"})
-	interval := func(v, lo, hi float64) string {
-		t := human(v)
-		if l, h := human(lo), human(hi); t != "" && l != "" && h != "" {
-			t += " (" + l + " – " + h + ")"
-		}
-		return t
+	for _, r := range s.reaches {
+		head = append(head, reportHead{Text: "reads to " + r.label})
 	}
+	head = append(head, reportHead{Text: "method", Left: true}, reportHead{Text: "backtest"})
 	var rows [][]reportCell
 	counts := map[complexity.Verdict]int{}
 	var notes []reportNote
+	var decisions []string
 	for _, e := range est {
 		r := e.rep
 		v := string(r.Verdict)
@@ -75,22 +73,26 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 			v = "—"
 		}
 		row := []reportCell{{Text: e.in.name, Class: "l"}, {Text: v, Class: "v " + verdictClass(r.Verdict)},
-			{Text: human(float64(r.Reads))}, {Text: human(float64(r.Distinct))}, {Text: frac3(r.DupFraction)},
-			{Text: frac3(r.SampleCoverage)}, {Text: interval(r.Total, r.TotalLo, r.TotalHi)}, {Text: frac3(r.Saturation)}}
-		for _, p := range r.Predictions {
-			row = append(row, reportCell{Text: interval(p.Distinct, p.Lo, p.Hi)}, reportCell{Text: frac3(p.DupFraction)})
+			{Text: human(float64(r.Reads))}, {Text: percent(r.DupFraction)}, {Text: human(float64(r.Distinct))},
+			{Text: withInterval(r.Total, r.TotalLo, r.TotalHi)}}
+		for _, p := range r.Predictions[:len(s.depths)] {
+			row = append(row, reportCell{Text: withInterval(p.Distinct, p.Lo, p.Hi)})
 		}
-		row = append(row, reportCell{Text: r.Method, Class: "l"}, reportCell{Text: pct(r.BacktestError)})
+		for _, a := range e.reach {
+			row = append(row, reportCell{Text: withInterval(a.reads, a.lo, a.hi)})
+		}
+		m, _, _ := strings.Cut(string(r.Method), "; total=")
+		row = append(row, reportCell{Text: m, Class: "l"}, reportCell{Text: pct(r.BacktestError)})
 		rows = append(rows, row)
 		counts[r.Verdict]++
-		all := append(append([]string(nil), e.in.notes...), r.Notes...)
-		if len(all) > 0 {
+		if all := sampleNotes(e); len(all) > 0 {
 			v := string(r.Verdict)
 			if v == "" {
 				v = "no gates"
 			}
 			notes = append(notes, reportNote{Name: e.in.name, Verdict: v, Text: strings.Join(all, "; ")})
 		}
+		decisions = append(decisions, decisionLine(s, info.command, e))
 	}
 	var tally []reportTally
 	for _, v := range []complexity.Verdict{complexity.VerdictFail, complexity.VerdictWarn, complexity.VerdictPass, complexity.VerdictNone} {
@@ -120,6 +122,13 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 		{"--max-dup", gateText(s.maxDup)},
 		{"--min-distinct", gateText(s.minDistinct)},
 		{"--min-coverage", gateText(s.minCoverage)},
+		{"--reach", strings.Join(s.reach, ",")},
+	}
+	if pl != nil {
+		settings = append(settings, reportKV{"--budget", s.budget}, reportKV{"--plan-goal", s.planGoal})
+		if s.pool != "" {
+			settings = append(settings, reportKV{"--pool", s.pool})
+		}
 	}
 	settings = append(settings, info.settings...)
 	title := "run"
@@ -132,7 +141,10 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 		"Title": title, "Count": len(est), "Command": info.command, "Version": toolVersion(),
 		"TargetText": target, "Tally": tally, "Header": head, "Rows": rows,
 		"Plot": template.HTML(plotSVG), "PlotNote": note, "Level": fmt.Sprintf("%.0f%%", s.level*100),
-		"Notes": notes, "Settings": settings, "RunNotes": info.notes,
+		"Notes": notes, "Settings": settings, "RunNotes": info.notes, "Decisions": decisions,
+	}
+	if pl != nil {
+		data["Plan"] = planReport(pl)
 	}
 	t, err := template.New("report").Parse(reportTemplate)
 	if err != nil {
@@ -143,6 +155,109 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 		return nil, err
 	}
 	return b.Bytes(), nil
+}
+
+// unitWord names what a command counts, for sentences.
+func unitWord(command string) string {
+	switch command {
+	case "reads":
+		return "molecules"
+	case "taxa":
+		return "taxa"
+	}
+	return "units"
+}
+
+// decisionLine says in words what the numbers mean for one sample: the
+// duplicates now, what the first --at depth beyond this run would add,
+// and where the first reach target is met, e.g. "LIB-03: 36% duplicates
+// now; 10x the reads would add 2.7k molecules (+63%); yield:0.1 at about
+// 25k reads".
+func decisionLine(s *shared, command string, e estimated) string {
+	r := e.rep
+	var parts []string
+	if !math.IsNaN(r.DupFraction) {
+		parts = append(parts, percent(r.DupFraction)+" duplicates now")
+	}
+	// The depth people ask about most is 10x; else the first one beyond
+	// this run.
+	order := make([]int, 0, len(s.depths))
+	for k, d := range s.depths {
+		if d.multiple == 10 {
+			order = append([]int{k}, order...)
+		} else {
+			order = append(order, k)
+		}
+	}
+	for _, k := range order {
+		d, p := s.depths[k], r.Predictions[k]
+		if p.Reads <= float64(r.Reads) || math.IsNaN(p.Distinct) || r.Distinct == 0 {
+			continue
+		}
+		gain := p.Distinct - float64(r.Distinct)
+		what := d.label + " reads"
+		if d.multiple > 0 {
+			what = d.label + " the reads"
+		}
+		parts = append(parts, fmt.Sprintf("%s would add %s %s (%+.0f%%)", what, human(gain), unitWord(command), 100*gain/float64(r.Distinct)))
+		break
+	}
+	for _, a := range e.reach {
+		switch {
+		case math.IsNaN(a.reads):
+			parts = append(parts, a.spec.label+" not reached within 100x")
+		case a.spec.kind == "yield":
+			parts = append(parts, fmt.Sprintf("more reads stop paying (%s) at about %s reads", a.spec.label, human(a.reads)))
+		default:
+			parts = append(parts, fmt.Sprintf("%s at about %s reads", a.spec.label, human(a.reads)))
+		}
+		break
+	}
+	if len(parts) == 0 {
+		parts = append(parts, "nothing to estimate")
+	}
+	return e.in.name + ": " + strings.Join(parts, "; ")
+}
+
+// planView is the plan as the report shows it.
+type planView struct {
+	Heading string
+	Rows    [][]reportCell
+	Bars    template.HTML
+	Notes   []string
+}
+
+// planReport renders the plan table and an inline SVG bar chart of the
+// next pool's shares.
+func planReport(pl *plan) planView {
+	v := planView{Heading: planText(pl)[:strings.Index(planText(pl), "\n")]}
+	var svg strings.Builder
+	const barH, gap, labelW, barW = 18, 6, 180, 600
+	fmt.Fprintf(&svg, `<svg xmlns="http://www.w3.org/2000/svg" width="%d" height="%d" role="img" aria-label="share of the next pool per sample">`,
+		labelW+barW+80, len(pl.rows)*(barH+gap)+gap)
+	for i, r := range pl.rows {
+		v.Rows = append(v.Rows, []reportCell{{Text: r.name, Class: "l"}, {Text: human(float64(r.readsNow))}, {Text: percent(r.shareNow)},
+			{Text: human(float64(r.readsNext))}, {Text: percent(r.poolShare)}, {Text: withInterval(r.distinctAfter, r.lo, r.hi)},
+			{Text: "+" + human(r.distinctAfter-float64(r.distinctNow))}, {Text: percent(r.dupAfter)}, {Text: r.action, Class: "l"}})
+		y := gap + i*(barH+gap)
+		w := 0.0
+		if !math.IsNaN(r.poolShare) {
+			w = r.poolShare * barW
+		}
+		fmt.Fprintf(&svg, `<text x="%d" y="%d" font-size="12" text-anchor="end">%s</text>`, labelW-6, y+barH-5, template.HTMLEscapeString(r.name))
+		fmt.Fprintf(&svg, `<rect x="%d" y="%d" width="%.1f" height="%d" fill="#2f6f9f"/>`, labelW, y, w, barH)
+		fmt.Fprintf(&svg, `<text x="%.1f" y="%d" font-size="12">%s</text>`, float64(labelW)+w+6, y+barH-5, percent(r.poolShare))
+	}
+	svg.WriteString("</svg>")
+	v.Bars = template.HTML(svg.String())
+	v.Notes = append(v.Notes, pl.legend())
+	v.Notes = append(v.Notes, pl.notes...)
+	for _, r := range pl.rows {
+		for _, n := range r.notes {
+			v.Notes = append(v.Notes, r.name+": "+n)
+		}
+	}
+	return v
 }
 
 func verdictClass(v complexity.Verdict) string {
