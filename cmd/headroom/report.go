@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"html/template"
 	"math"
-	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot/vg"
@@ -273,53 +272,4 @@ func gateText(v float64) string {
 		return "not set"
 	}
 	return fmt.Sprint(v)
-}
-
-// human writes a count for people (report cells, plot ticks): three
-// significant digits with k/M/G, trailing zeros dropped: 500, 20k, 1.5M,
-// 2.33M, 3G.
-func human(v float64) string {
-	if v != v || v > 1e300 || v < -1e300 {
-		return ""
-	}
-	if v < 1e4 && v > -1e4 {
-		return fmt.Sprintf("%.0f", v)
-	}
-	for _, u := range []struct {
-		d   float64
-		suf string
-	}{{1e9, "G"}, {1e6, "M"}, {1e3, "k"}} {
-		if v >= 0.9995*u.d || v <= -0.9995*u.d {
-			x := v / u.d
-			prec := 2
-			switch {
-			case x >= 100 || x <= -100:
-				prec = 0
-			case x >= 10 || x <= -10:
-				prec = 1
-			}
-			t := strconv.FormatFloat(x, 'f', prec, 64)
-			if strings.Contains(t, ".") {
-				t = strings.TrimRight(strings.TrimRight(t, "0"), ".")
-			}
-			return t + u.suf
-		}
-	}
-	return fmt.Sprint(v)
-}
-
-// frac3 writes a fraction with three decimals.
-func frac3(v float64) string {
-	if v != v {
-		return ""
-	}
-	return fmt.Sprintf("%.3f", v)
-}
-
-// pct writes a signed relative error as a percentage.
-func pct(v float64) string {
-	if v != v {
-		return ""
-	}
-	return fmt.Sprintf("%+.1f%%", 100*v)
 }

@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"fmt"
-	"math"
 	"strings"
 	"unicode/utf8"
 )
@@ -137,30 +136,6 @@ func (f *footnotes) number(n string) int {
 	f.list = append(f.list, n)
 	f.num[n] = len(f.list)
 	return len(f.list)
-}
-
-// withInterval writes "12.4k (11.9k–13.0k)", or the value alone without
-// an interval, or "–" when there is no value.
-func withInterval(v, lo, hi float64) string {
-	if math.IsNaN(v) {
-		return "–"
-	}
-	if math.IsNaN(lo) || math.IsNaN(hi) {
-		return human(v)
-	}
-	return fmt.Sprintf("%s (%s–%s)", human(v), human(lo), human(hi))
-}
-
-// percent writes a fraction as a whole percentage ("36%"), with one
-// decimal below 10%.
-func percent(v float64) string {
-	if math.IsNaN(v) {
-		return "–"
-	}
-	if math.Abs(v) < 0.1 {
-		return fmt.Sprintf("%.1f%%", 100*v)
-	}
-	return fmt.Sprintf("%.0f%%", 100*v)
 }
 
 func cutName(s string) string {
