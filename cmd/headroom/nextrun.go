@@ -139,7 +139,7 @@ func (pl *plan) reachSplit(s *shared, est []estimated) []int64 {
 		a := e.reach[0]
 		switch {
 		case math.IsNaN(a.reads):
-			r.notes = append(r.notes, "target "+pl.target+" cannot be reached: not planned")
+			r.notes = append(r.notes, "not planned: "+a.note)
 		case a.reads <= r.curveNow:
 			r.action = "done"
 		default:

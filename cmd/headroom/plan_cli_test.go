@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
@@ -96,4 +97,66 @@ func readTSV(t *testing.T, path string) []map[string]string {
 		rows = append(rows, m)
 	}
 	return rows
+}
+
+// TestPlanGoalReach: each sample gets what its target needs (a target
+// already met is done, one out of reach is not planned, with why), scaled
+// down alike when the budget is short; JSON plans keep the keys.
+func TestPlanGoalReach(t *testing.T) {
+	dir := t.TempDir()
+	short := filepath.Join(dir, "short.tsv")
+	code, _, stderr := runCLI(t, "", "counts", "--bootstrap", "0", "-o", filepath.Join(dir, "s.tsv"), "--plan", short,
+		"--budget", "20M", "--plan-goal", "reach", "--reach", "distinct:2x", demoCounts)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var sum int64
+	for _, r := range readTSV(t, short) {
+		n, _ := strconv.ParseInt(r["reads_next"], 10, 64)
+		sum += n
+		switch r["action"] {
+		case "sequence":
+			if !strings.Contains(r["notes"], "falls short of distinct:2x") {
+				t.Errorf("%s: sequenced on a short budget without saying it falls short: %q", r["sample"], r["notes"])
+			}
+		case "stop":
+			if n != 0 || !strings.Contains(r["notes"], "not planned: distinct:2x not reached within 100x") {
+				t.Errorf("%s: stop with %d reads, notes %q", r["sample"], n, r["notes"])
+			}
+		}
+	}
+	if sum != 20000000 {
+		t.Errorf("a short budget is all given: reads_next sum to %d", sum)
+	}
+	js := filepath.Join(dir, "plan.json")
+	code, _, stderr = runCLI(t, "", "counts", "--bootstrap", "0", "-o", filepath.Join(dir, "s2.tsv"), "--plan", js,
+		"--budget", "200M", "--plan-goal", "reach", "--reach", "dup:0.5", demoCounts)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var doc struct {
+		Notes   []string
+		Samples []map[string]any
+	}
+	b, _ := os.ReadFile(js)
+	if err := json.Unmarshal(b, &doc); err != nil {
+		t.Fatal(err)
+	}
+	done := 0
+	for _, s := range doc.Samples {
+		for _, k := range planKeys {
+			if _, ok := s[k]; !ok {
+				t.Errorf("plan JSON lacks %q", k)
+			}
+		}
+		if s["action"] == "done" {
+			done++
+			if s["reads_next"].(float64) != 0 {
+				t.Errorf("%v: done but given reads", s["sample"])
+			}
+		}
+	}
+	if done == 0 || len(doc.Notes) == 0 || !strings.Contains(doc.Notes[0], "left unassigned") {
+		t.Errorf("dup:0.5 on the demo: %d done, notes %q", done, doc.Notes)
+	}
 }
