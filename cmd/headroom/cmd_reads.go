@@ -14,7 +14,6 @@ import (
 	"time"
 
 	"github.com/schollz/progressbar/v3"
-	"github.com/spf13/pflag"
 
 	"headroom/complexity"
 	"headroom/dedup"
@@ -25,17 +24,14 @@ func init() {
 	register(subcommand{name: "reads", summary: "count molecules in BAM, SAM or FASTQ(.gz) reads and predict deeper sequencing", run: runReads})
 }
 
-const readsUsage = `usage: headroom reads [flags] FILE...
-
-Counts how many times each distinct molecule was sequenced, per library, in
+const readsAbout = `Counts how many times each distinct molecule was sequenced, per library, in
 BAM, SAM or FASTQ files (plain, gzip or BGZF; '-' reads standard input), and
 predicts what deeper sequencing of each library would give. Two FASTQ files in
 a row whose first read names agree are read as the two mates of one library.
 
 Writes one summary row per library (TSV or JSON) to stdout or -o FILE, with the
 columns records, used_fragments and optical_dups, and on request the curve,
-plot, HTML report and the frequency counts (--save-counts, for headroom merge).
-`
+plot, HTML report and the frequency counts (--save-counts, for headroom merge).`
 
 // readsConfig is the parsed command line of `headroom reads`.
 type readsConfig struct {
@@ -54,24 +50,22 @@ type readsConfig struct {
 }
 
 func runReads(a *app, args []string) error {
-	fs := pflag.NewFlagSet("reads", pflag.ContinueOnError)
-	fs.SetOutput(io.Discard)
-	s := addShared(fs)
+	cmd := newCommand("reads", "headroom reads [flags] FILE...", readsAbout,
+		"headroom reads --at 10x,100M --report lanes.html testdata/demo/qc_run.bam",
+		"headroom reads --bootstrap 0 -o /dev/null --save-counts chr1.counts.tsv chr1.bam")
 	var c readsConfig
+	fs := cmd.flags(groupInputs)
 	fs.StringVar(&c.by, "by", "library", "one summary row per `UNIT`: library (@RG LB), read-group (@RG ID) or file")
 	fs.StringVar(&c.umi, "umi", "rx", "where UMIs come from: rx (the RX tag), name (the read name when a record has no RX), none")
 	fs.IntVar(&c.minMapQ, "min-mapq", 0, "skip alignments with mapping quality below `Q`")
 	fs.Int64Var(&c.optical, "optical-distance", 100, "largest |dx| and |dy| in pixels of optical duplicates (`PX`; 2500 for patterned flow cells; 0 = off)")
 	fs.IntVar(&c.keyBases, "key-bases", 0, "FASTQ: leading bases of each mate in the molecule key (`N`; 0 = whole reads)")
-	fs.StringVar(&c.mode, "mode", "auto", "counting: auto (window when the header says coordinate-sorted), sorted or hashed")
-	fs.StringVar(&c.maxMemory, "max-memory", "4G", "memory budget of the hash tables (`SIZE`, e.g. 512M, 4G); past it molecules are subsampled by hash")
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, pflag.ErrHelp) {
-			fmt.Fprint(a.stdout, helpText(readsUsage, fs, "headroom reads --at 10x,100M --report lanes.html testdata/demo/qc_run.bam",
-				"headroom reads --bootstrap 0 -o /dev/null --save-counts chr1.counts.tsv chr1.bam"))
-			return nil
-		}
-		return usagef("reads: %v", err)
+	run := cmd.flags(groupRun)
+	run.StringVar(&c.mode, "mode", "auto", "counting: auto (window when the header says coordinate-sorted), sorted or hashed")
+	run.StringVar(&c.maxMemory, "max-memory", "4G", "memory budget of the hash tables (`SIZE`, e.g. 512M, 4G); past it molecules are subsampled by hash")
+	s := addShared(cmd, "yield:0.1")
+	if help, err := cmd.parse(a, args); help || err != nil {
+		return err
 	}
 	if err := s.check(); err != nil {
 		return err
@@ -105,7 +99,7 @@ func runReads(a *app, args []string) error {
 		return usagef("reads: --max-memory: %v", err)
 	}
 	c.memBudget = mem
-	c.inputs = fs.Args()
+	c.inputs = cmd.args()
 	if len(c.inputs) == 0 {
 		return usagef("reads: give at least one BAM, SAM or FASTQ file ('-' for standard input)")
 	}
@@ -117,6 +111,9 @@ func runReads(a *app, args []string) error {
 	}
 	if stdin > 1 {
 		return usagef("reads: standard input ('-') can be given once only")
+	}
+	if err := s.checkOutputs(c.inputs); err != nil {
+		return err
 	}
 	c.threads = s.threads
 	c.progress = s.showProgress(a)
