@@ -40,41 +40,25 @@ import (
 // ModelErrorKnots are the knots (depth multiple, s_model) of the
 // model-error term of extrapolation intervals, calibrated as described
 // above.
-var ModelErrorKnots = []Knot{{1, 0}, {2, 0.015}, {10, 0.083}, {30, 0.192}, {100, 0.269}}
+var ModelErrorKnots = []Knot{{1, 0}, {2, 0}, {10, 0}, {30, 0.053}, {100, 0.076}}
 
 // Knot is one point of the model-error curve: at depth multiple M the
 // model-error standard deviation of log Δ is S.
 type Knot struct{ M, S float64 }
 
 // modelErr returns s_model at multiple m.
-func modelErr(m float64) float64 {
-	k := ModelErrorKnots
-	if !(m > 1) || len(k) == 0 {
-		return 0
-	}
-	if m >= k[len(k)-1].M {
-		return k[len(k)-1].S
-	}
-	for i := 1; i < len(k); i++ {
-		if m <= k[i].M {
-			a, b := k[i-1], k[i]
-			f := (math.Log(m) - math.Log(a.M)) / (math.Log(b.M) - math.Log(a.M))
-			return a.S + f*(b.S-a.S)
-		}
-	}
-	return k[len(k)-1].S
-}
+func modelErr(m float64) float64 { return knotAt(ModelErrorKnots, m) }
 
 // interval turns bootstrap replicate values at depth t into an interval at
 // level around point (see above). Replicates that are missing or not above
 // D are ignored; with fewer than two usable replicates the interval
 // reflects model error only.
 func interval(point float64, reps []float64, level float64, c Counts, t float64) (lo, hi float64) {
-	return intervalFit(point, reps, level, c, t, missing)
+	return intervalFit(point, reps, level, c, t, 0)
 }
 
 // intervalFit is interval with the adaptive term s_fit of backtest error
-// bt added (adapt.go); a missing bt adds nothing.
+// bt added (adapt.go); interval is intervalFit for a perfect backtest.
 func intervalFit(point float64, reps []float64, level float64, c Counts, t, bt float64) (lo, hi float64) {
 	n, d := float64(c.Reads()), float64(c.Distinct())
 	delta := point - d

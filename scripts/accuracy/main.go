@@ -245,6 +245,7 @@ func main() {
 	flag.Parse()
 	if *calibrate {
 		complexity.ModelErrorKnots = nil // bootstrap-only intervals
+		complexity.BacktestKnots = nil
 	}
 
 	sizes := []int{1e4, 1e5, 1e6, 1e7}

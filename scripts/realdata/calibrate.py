@@ -9,27 +9,34 @@ simulated calibration set); REAL.csv: `go run ./scripts/realdata -seed 2
 -csv REAL.csv` (only its tuning sources are used). Both must come from a
 headroom whose intervals use the knots OLD_KNOTS below, so that the
 bootstrap part of each interval can be recovered from its lower end:
-lo = D + Δ·exp(−z·s), s² = s_boot² + s_old(m)² + (κ_old·a(b, m))².
+lo = D + Δ·exp(−z·s), s² = s_boot² + s_old(m)² + (κ_old(m)·|b|)².
 
 The adaptive interval (complexity/adapt.go) is, on the log of the new units,
 
-  s² = s_boot² + s_model(m)² + (κ·|b|·ln(m)/ln(10))²,
+  s² = s_boot² + s_model(m)² + (κ(m)·|b|)²,
 
 b the sample's self-backtest error (a 10x extrapolation of its own 10%
-thinning). For each κ this prints the knots s_model(m), the smallest values
-for which 95% of the calibration cells hold the truth (simulated cases and
-real tuning cells weighted equally), the resulting coverage per simulated
-family and per real source, and the median interval width.
+thinning). With FIT=1 it prints the knots of complexity.ModelErrorKnots and
+BacktestKnots by the rule of fit_knots (the one in use). Without it, for
+each κ given (one weight for all multiples), exploratory: the knots for
+95% coverage (simulated and real tuning cells weighted equally; with
+KNOTS_FROM=sim the simulated alone), the lowest per-family and per-source
+coverage and the median width.
 """
 import csv
 import math
+import os
 import sys
 from collections import defaultdict
 
 Z = 1.959963984540054
 MULTS = [2.0, 10.0, 30.0, 100.0]
 OLD_KNOTS = [(1, 0), (2, 0.015), (10, 0.083), (30, 0.192), (100, 0.269)]
-OLD_KAPPA = 0.0
+# The knots of the build that wrote the CSVs (default: those before the
+# adaptive term, commit 7a33e1a; to recalibrate from a later build, put its
+# complexity.ModelErrorKnots and BacktestKnots here).
+OLD_BT_KNOTS = [(1, 0)]
+BT_MISSING = 0.1  # complexity.backtestMissing
 
 
 def knot_interp(knots, m):
@@ -46,8 +53,8 @@ def knot_interp(knots, m):
 
 def adapt(b, m):
     if b is None or not math.isfinite(b):
-        return 0.0
-    return abs(b) * math.log(m) / math.log(10)
+        return BT_MISSING
+    return abs(b)
 
 
 def row(group, name, m, d, pred, lo, truth, b):
@@ -57,7 +64,8 @@ def row(group, name, m, d, pred, lo, truth, b):
     if not (delta > 0 and lo > d and truth > d):
         return (group, name, m, 0.0, math.inf, b)
     s = -math.log((lo - d) / delta) / Z
-    sb2 = s * s - knot_interp(OLD_KNOTS, m) ** 2 - (OLD_KAPPA * adapt(b, m)) ** 2
+    bb = abs(b) if b is not None and math.isfinite(b) else BT_MISSING
+    sb2 = s * s - knot_interp(OLD_KNOTS, m) ** 2 - (knot_interp(OLD_BT_KNOTS, m) * bb) ** 2
     sb = math.sqrt(max(sb2, 0.0))
     e = abs(math.log((truth - d) / delta))
     return (group, name, m, sb, e, b)
@@ -99,10 +107,13 @@ def covered(c, sm, kappa):
     return e <= Z * math.sqrt(sb * sb + sm * sm + (kappa * adapt(b, m)) ** 2)
 
 
+GROUPS = ("sim", "real")
+
+
 def coverage(cs, sm, kappa):
-    """Equal weight to the simulated and the real group."""
+    """Equal weight to the groups in GROUPS (simulated, real tuning)."""
     out = []
-    for g in ("sim", "real"):
+    for g in GROUPS:
         gc = [c for c in cs if c[0] == g]
         if gc:
             out.append(sum(covered(c, sm, kappa) for c in gc) / len(gc))
@@ -147,10 +158,83 @@ def report(cells, kappa, knots):
 
 
 def main():
+    global GROUPS
+    if os.environ.get("FIT") == "1":
+        fit_knots(load(sys.argv[1], sys.argv[2]))
+        return
+    if os.environ.get("KNOTS_FROM") == "sim":
+        GROUPS = ("sim",)  # knots from the simulated set alone, the weight judged on both
     cells = load(sys.argv[1], sys.argv[2])
     kappas = [float(x) for x in sys.argv[3:]] or [0, 0.5, 1, 2, 3, 4, 6]
     for k in kappas:
         report(cells, k, calibrate(cells, k))
+
+
+
+def per_multiple(cells, kappas):
+    """For each multiple and weight: the sim-calibrated knot, the coverage
+    of the simulated and the real tuning cells, their median widths s."""
+    import statistics
+    for m in MULTS:
+        cs = [c for c in cells if c[2] == m]
+        for k in kappas:
+            lo, hi = 0.0, 5.0
+            sim = [c for c in cs if c[0] == "sim"]
+            real = [c for c in cs if c[0] == "real"]
+            for _ in range(50):
+                mid = (lo + hi) / 2
+                if sum(covered(c, mid, k) for c in sim) / len(sim) >= 0.95:
+                    hi = mid
+                else:
+                    lo = mid
+            def w(g):
+                return statistics.median(math.sqrt(c[3] ** 2 + hi ** 2 + (k * adapt(c[5], m)) ** 2) for c in g)
+            fam = defaultdict(list)
+            for c in cs:
+                fam[c[1]].append(covered(c, hi, k))
+            worst = sorted((sum(v) / len(v), n) for n, v in fam.items())[:3]
+            print(f"m={m:g} kappa={k:g}: knot {hi:.3f}; sim {100 * sum(covered(c, hi, k) for c in sim) / len(sim):.0f}% "
+                  f"real {100 * sum(covered(c, hi, k) for c in real) / len(real):.0f}%; width sim {w(sim):.3f} real {w(real):.3f}; worst "
+                  + ", ".join(f"{n} {100 * v:.0f}%" for v, n in worst))
+
+
+def fit_knots(cells, grid=None):
+    """The rule used for complexity.ModelErrorKnots and BacktestKnots: for
+    each multiple m and weight κ on a grid, the knot s_model(m) is the
+    smallest giving 95% coverage on the simulated calibration set; κ(m) is
+    the smallest weight whose real tuning coverage reaches 95% while the
+    simulated coverage stays at most 97%; where none does, the weight with
+    the highest real coverage under that cap."""
+    grid = grid or [float(k) for k in range(0, 31)]
+    model, weight = [(1, 0.0)], [(1, 0.0)]
+    for m in MULTS:
+        cs = [c for c in cells if c[2] == m]
+        sim = [c for c in cs if c[0] == "sim"]
+        real = [c for c in cs if c[0] == "real"]
+        best = None
+        for k in grid:
+            lo, hi = 0.0, 5.0
+            for _ in range(50):
+                mid = (lo + hi) / 2
+                if sum(covered(c, mid, k) for c in sim) / len(sim) >= 0.95:
+                    hi = mid
+                else:
+                    lo = mid
+            cs_ = sum(covered(c, hi, k) for c in sim) / len(sim)
+            cr = sum(covered(c, hi, k) for c in real) / len(real)
+            if cs_ > 0.97:
+                continue
+            if best is None or cr > best[2] + 1e-12:
+                best = (k, hi, cr, cs_)
+            if cr >= 0.95:
+                break
+        k, sm, cr, cs_ = best
+        print(f"m={m:g}: kappa {k:g}, s_model {sm:.3f}: simulated {100 * cs_:.1f}%, real tuning {100 * cr:.1f}%")
+        model.append((m, sm))
+        weight.append((m, k))
+    print("ModelErrorKnots = []Knot{" + ", ".join(f"{{{m:g}, {v:.3f}}}" for m, v in model) + "}")
+    print("BacktestKnots = []Knot{" + ", ".join(f"{{{m:g}, {v:g}}}" for m, v in weight) + "}")
+    return model, weight
 
 
 if __name__ == "__main__":
