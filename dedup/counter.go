@@ -4,8 +4,9 @@ import (
 	"headroom/reads"
 )
 
-// Options configure a counter. The zero value links no optical duplicates
-// and sets no memory budget.
+// Options configure a counter and Count. The zero value links no optical
+// duplicates, sets no memory budget, counts by library in ModeAuto with
+// the zero reads.KeyOptions, and reports no progress.
 type Options struct {
 	// OpticalDistance is the largest |dx| and |dy|, in flow-cell pixels,
 	// of two reads of one molecule counted as one optical cluster; 0 turns
@@ -14,6 +15,22 @@ type Options struct {
 	// MemoryBudget bounds the bytes of the hashed counter's tables; 0 means
 	// no bound. Past it the counter subsamples by key hash.
 	MemoryBudget int64
+	// BudgetName is how the budget was given, for the note that says it
+	// was reached (e.g. "--max-memory 4G"); "" names it in bytes.
+	BudgetName string
+
+	// By, Mode and Key are used by Count: what a summary row is, how
+	// molecules are counted, and how records become molecule keys
+	// (Key.OpticalNames is set from OpticalDistance).
+	By   By
+	Mode Mode
+	Key  reads.KeyOptions
+	// Threads bounds the goroutines that decompress one input (reads.Open).
+	Threads int
+	// Progress, when not nil, is called by Count as input number in (an
+	// index of its inputs) starts (records 0), every 65,536 records or
+	// pairs, and when it is done.
+	Progress func(in int, records int64, done bool)
 }
 
 // Result is one library's outcome.

@@ -55,7 +55,7 @@ func FuzzParseSAMLine(f *testing.F) {
 func FuzzFASTQ(f *testing.F) {
 	f.Add([]byte("@r1\nACGT\n+\nIIII\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		r := NewFASTQReader(bytes.NewReader(data))
+		r := newFASTQReader(bytes.NewReader(data))
 		var rec FASTQRecord
 		for i := 0; ; i++ {
 			err := r.Read(&rec)
@@ -105,7 +105,7 @@ func FuzzOpen(f *testing.F) {
 			for r.Read(&rec) == nil {
 			}
 		case FormatFASTQ:
-			r := NewFASTQReader(in.Reader())
+			r := NewFASTQReader(in)
 			var rec FASTQRecord
 			for r.Read(&rec) == nil {
 			}

@@ -1,0 +1,453 @@
+package dedup
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"runtime/debug"
+
+	"headroom/complexity"
+	"headroom/reads"
+)
+
+// Input is one stream of reads to count: BAM, SAM or FASTQ, plain, gzip
+// or BGZF (reads.Open recognises which).
+type Input struct {
+	// Name names the input in errors and notes: a path, or "stdin".
+	Name string
+	// Sample names the library of records that name none (no read group,
+	// FASTQ, or By is ByFile); "" means Name.
+	Sample string
+	// R is the stream.
+	R io.Reader
+	// Reopen returns the stream again from its start, for a sorted pass
+	// that found the records out of order and counts again by hashing;
+	// nil when the stream cannot be read twice (standard input).
+	Reopen func() (io.Reader, error)
+}
+
+// By says what one summary row (Library) is.
+type By int
+
+// Ways of grouping records into libraries.
+const (
+	ByLibrary   By = iota // @RG LB of the record's read group (read groups sharing LB are one library)
+	ByReadGroup           // @RG ID
+	ByFile                // the input (Input.Sample)
+)
+
+// Mode says how molecules are counted.
+type Mode int
+
+// Counting modes.
+const (
+	ModeAuto   Mode = iota // Sorted when the header says coordinate-sorted and there is one alignment input, else Hashed
+	ModeSorted             // Sorted, an error when the records are not in order
+	ModeHashed             // Hashed
+)
+
+// Library is one summary row: a library's frequency counts and tallies.
+type Library struct {
+	Name   string
+	Counts complexity.Counts
+	// Records read (both mates of a FASTQ pair).
+	Records int64
+	// UsedFragments is the fragments counted, before optical collapse.
+	UsedFragments int64
+	// OpticalDups is the reads removed as optical duplicates.
+	OpticalDups int64
+	// Notes are the run's notes followed by this library's own.
+	Notes []string
+}
+
+// ErrDisorder reports coordinate-sorted input whose records are not.
+var ErrDisorder = errors.New("dedup: records out of coordinate order")
+
+// progressEvery is the number of records between Progress calls.
+const progressEvery = 1 << 16
+
+// Count reads every input and returns one Library per library, in the
+// order they were first seen: alignment inputs first, then FASTQ. FASTQ
+// inputs in a row whose first read names agree (reads.MateName) are the
+// two mates of one library. When a coordinate-sorted pass finds records
+// out of order (ModeAuto) and every input can be reopened, Count counts
+// again by hashing and says so in the notes.
+//
+// Errors name their input: a *reads.FileError, usually holding a
+// *reads.ParseError with the line or record.
+func Count(inputs []Input, opt Options) ([]Library, error) {
+	libs, err := count(inputs, opt, false)
+	if errors.Is(err, ErrDisorder) {
+		for i := range inputs {
+			if inputs[i].R, err = inputs[i].Reopen(); err != nil {
+				return nil, &reads.FileError{File: inputs[i].Name, Err: err}
+			}
+		}
+		libs, err = count(inputs, opt, true)
+	}
+	return libs, err
+}
+
+// library is one summary row being counted.
+type library struct {
+	name    string
+	records int64
+	notes   []string
+}
+
+// run is the state of one counting pass over all inputs.
+type run struct {
+	opt     Options
+	rewind  bool // every input can be reopened
+	hashed  bool // counting by hashing after a sorted pass found disorder
+	libs    []*library
+	libIdx  map[string]int
+	notes   []string
+	noteSet map[string]bool
+	sorted  *Sorted
+	hash    *Hashed
+	keyer   reads.Keyer
+}
+
+func (r *run) note(format string, args ...any) {
+	n := fmt.Sprintf(format, args...)
+	if !r.noteSet[n] {
+		r.noteSet[n] = true
+		r.notes = append(r.notes, n)
+	}
+}
+
+func (r *run) library(name string) int {
+	if i, ok := r.libIdx[name]; ok {
+		return i
+	}
+	r.libs = append(r.libs, &library{name: name})
+	r.libIdx[name] = len(r.libs) - 1
+	return len(r.libs) - 1
+}
+
+func (r *run) libNote(lib int, format string, args ...any) {
+	r.libs[lib].notes = append(r.libs[lib].notes, fmt.Sprintf(format, args...))
+}
+
+// source is one input after sniffing.
+type source struct {
+	Input
+	index int
+	in    *reads.Input
+	fq    *reads.FASTQReader
+	first string // the first FASTQ read name, copied
+}
+
+func (s *source) sample() string {
+	if s.Sample != "" {
+		return s.Sample
+	}
+	return s.Name
+}
+
+func (s *source) fail(err error) error {
+	var fe *reads.FileError
+	if errors.As(err, &fe) {
+		return err
+	}
+	return &reads.FileError{File: s.Name, Err: err}
+}
+
+func count(inputs []Input, opt Options, hashed bool) ([]Library, error) {
+	r := &run{opt: opt, hashed: hashed, libIdx: map[string]int{}, noteSet: map[string]bool{}, rewind: true}
+	r.keyer.Opt = opt.Key
+	r.keyer.Opt.OpticalNames = opt.OpticalDistance > 0
+	r.hash = NewHashed(opt)
+	for _, in := range inputs {
+		r.rewind = r.rewind && in.Reopen != nil
+	}
+	var opened []*source
+	defer func() {
+		for _, s := range opened {
+			s.in.Close()
+		}
+	}()
+	var alignments, fastqs []*source
+	for i, in := range inputs {
+		s := &source{Input: in, index: i}
+		ri, err := reads.Open(in.R, opt.Threads)
+		if err != nil {
+			return nil, s.fail(err)
+		}
+		s.in = ri
+		opened = append(opened, s)
+		if ri.Format != reads.FormatFASTQ {
+			alignments = append(alignments, s)
+			continue
+		}
+		s.fq = reads.NewFASTQReader(ri)
+		first, err := s.fq.Peek()
+		if err == io.EOF {
+			return nil, s.fail(errors.New("no FASTQ records"))
+		}
+		if err != nil {
+			return nil, s.fail(err)
+		}
+		s.first = string(first.Name)
+		fastqs = append(fastqs, s)
+	}
+	allowSorted := len(alignments) == 1 && !hashed
+	if !allowSorted || opt.Mode == ModeHashed || len(fastqs) > 0 {
+		// The hash tables are large pointer-free arrays that the collector
+		// never scans, and segments outgrown by a doubling are garbage at
+		// once: a low GC target frees them sooner for little CPU, keeping
+		// the peak near the live size (peak RSS of --mode hashed over 1.17M
+		// molecules: 60 MB at the default of 100, 43 MB at 25; BENCHMARKS.md).
+		// The sorted window is small, and a low target would only cost CPU.
+		defer debug.SetGCPercent(debug.SetGCPercent(25))
+	}
+	if len(alignments) > 1 && opt.Mode != ModeHashed {
+		r.note("%d alignment files: counted by hashing, so a library spread over files is one set of molecules", len(alignments))
+	}
+	for _, s := range alignments {
+		if err := r.countAlignments(s, allowSorted); err != nil {
+			return nil, err
+		}
+	}
+	for i := 0; i < len(fastqs); i++ {
+		if i+1 < len(fastqs) && mateName(fastqs[i].first) == mateName(fastqs[i+1].first) {
+			if err := r.countFASTQ(fastqs[i], fastqs[i+1]); err != nil {
+				return nil, err
+			}
+			i++
+			continue
+		}
+		if len(fastqs) > 1 {
+			// Say why this file is not half of a pair.
+			other := fastqs[(i+1)%len(fastqs)]
+			if i+1 == len(fastqs) && i > 0 {
+				other = fastqs[i-1]
+			}
+			r.libNote(r.library(fastqs[i].sample()), "read as single-end: its first read name %q does not match %q of %s (mates must be given as R1 R2 of the same reads)",
+				fastqs[i].first, other.first, other.Name)
+		}
+		if err := r.countFASTQ(fastqs[i], nil); err != nil {
+			return nil, err
+		}
+	}
+	if hashed {
+		r.note("the header says coordinate-sorted but the records are not: counted by hashing instead")
+	}
+	for lib, n := range r.keyer.NoMC {
+		if n > 0 {
+			r.libNote(lib, "%d pairs lack the MC tag: the mate's 5' end was taken as PNEXT, ignoring its clipping (approximate; add MC with samtools fixmate -m)", n)
+		}
+	}
+	return r.results()
+}
+
+func mateName(name string) string { return string(reads.MateName([]byte(name))) }
+
+// alignmentReader is what BAM and SAM readers share.
+type alignmentReader interface {
+	Read(*reads.Record) error
+	Header() *reads.Header
+}
+
+func (r *run) progress(s *source, records int64, done bool) {
+	if r.opt.Progress != nil {
+		r.opt.Progress(s.index, records, done)
+	}
+}
+
+func (r *run) countAlignments(s *source, allowSorted bool) error {
+	var rd alignmentReader
+	var err error
+	if s.in.Format == reads.FormatBAM {
+		rd, err = reads.NewBAMReader(s.in)
+	} else {
+		rd, err = reads.NewSAMReader(s.in)
+	}
+	if err != nil {
+		return s.fail(err)
+	}
+	h := rd.Header()
+	sortedMode := allowSorted && (r.opt.Mode == ModeSorted || r.opt.Mode == ModeAuto && h.Coordinate)
+	var counter Counter = r.hash
+	if sortedMode {
+		r.sorted = NewSorted(Options{OpticalDistance: r.opt.OpticalDistance})
+		counter = r.sorted
+	}
+	libOf := r.readGroups(s, h)
+	r.progress(s, 0, false)
+	var rec reads.Record
+	var n int64
+	lastRef, lastPos := int32(-1), int32(-1)
+	tail := false
+	for {
+		err := rd.Read(&rec)
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return s.fail(err)
+		}
+		n++
+		if n%progressEvery == 0 {
+			r.progress(s, n, false)
+		}
+		lib := libOf(rec.RG)
+		r.libs[lib].records++
+		if sortedMode {
+			if rec.Ref < 0 {
+				tail = true
+			} else {
+				if tail || rec.Ref < lastRef || rec.Ref == lastRef && rec.Pos < lastPos {
+					if r.opt.Mode == ModeAuto && r.rewind {
+						return ErrDisorder
+					}
+					why := "although --mode sorted was given"
+					if r.opt.Mode == ModeAuto {
+						why = "although the header says SO:coordinate (standard input cannot be read twice)"
+					}
+					return s.fail(&reads.ParseError{Record: n, Err: fmt.Errorf("not in coordinate order (%s after %s) %s; sort the file (samtools sort) or use --mode hashed",
+						locus(h, rec.Ref, rec.Pos), locus(h, lastRef, lastPos), why)})
+				}
+				lastRef, lastPos = rec.Ref, rec.Pos
+				counter.Advance(rec.Ref, int64(rec.Pos))
+			}
+		}
+		f, ok := r.keyer.Alignment(&rec, lib)
+		if !ok {
+			continue
+		}
+		counter.SetLeadClip(r.keyer.MaxLeadClip)
+		counter.Add(f)
+	}
+	r.progress(s, n, true)
+	if r.sorted != nil && r.sorted.Late > 0 {
+		r.note("%d fragments had a leading clip longer than the sorted window allowed; up to that many molecules may be counted twice (use --mode hashed for exact counts)", r.sorted.Late)
+	}
+	return nil
+}
+
+// readGroups returns the library index of a record's read group, each
+// group resolved once.
+func (r *run) readGroups(s *source, h *reads.Header) func(rg []byte) int {
+	rgLib := map[string]int{}
+	noRG := -1
+	return func(rg []byte) int {
+		if rg == nil || r.opt.By == ByFile {
+			if noRG < 0 {
+				noRG = r.library(s.sample())
+			}
+			return noRG
+		}
+		if i, ok := rgLib[string(rg)]; ok {
+			return i
+		}
+		id := string(rg)
+		lb, known := h.Library[id]
+		n := id
+		if r.opt.By == ByLibrary && lb != "" {
+			n = lb
+		}
+		i := r.library(n)
+		rgLib[id] = i
+		if !known {
+			r.libNote(i, "read group %q is used by records but not declared in the header of %s", id, s.Name)
+		}
+		return i
+	}
+}
+
+func locus(h *reads.Header, ref, pos int32) string {
+	if ref < 0 || int(ref) >= len(h.Refs) {
+		return "unmapped"
+	}
+	return fmt.Sprintf("%s:%d", h.Refs[ref], pos+1)
+}
+
+// countFASTQ counts one FASTQ file, or a pair of mate files (s2 not nil),
+// each inflating ahead in its own goroutine (reads.Open) so that two
+// mates' files use two cores.
+func (r *run) countFASTQ(s1, s2 *source) error {
+	lib := r.library(s1.sample())
+	L := r.libs[lib]
+	r.progress(s1, 0, false)
+	var rec1, rec2 reads.FASTQRecord
+	var pr *reads.PairReader
+	if s2 != nil {
+		pr = reads.NewPairReader(s1.fq, s2.fq, s1.Name, s2.Name)
+	}
+	var pairs int64
+	for {
+		var f reads.Fragment
+		if pr != nil {
+			err := pr.Read(&rec1, &rec2)
+			if err == io.EOF {
+				break
+			}
+			if err != nil {
+				return err
+			}
+			f = r.keyer.FASTQ(&rec1, &rec2, lib)
+			L.records += 2
+		} else {
+			err := s1.fq.Read(&rec1)
+			if err == io.EOF {
+				break
+			}
+			if err != nil {
+				return s1.fail(err)
+			}
+			f = r.keyer.FASTQ(&rec1, nil, lib)
+			L.records++
+		}
+		r.hash.Add(f)
+		pairs++
+		if pairs%progressEvery == 0 {
+			r.progress(s1, pairs, false)
+		}
+	}
+	r.progress(s1, pairs, true)
+	return nil
+}
+
+// results combines the counters' results into one Library per library.
+func (r *run) results() ([]Library, error) {
+	n := len(r.libs)
+	res := r.hash.Results(n)
+	if r.sorted != nil {
+		for i, s := range r.sorted.Results(n) {
+			h := &res[i]
+			for t, u := range s.Freq {
+				h.Freq[t] += u
+			}
+			h.Fragments += s.Fragments
+			h.OpticalDups += s.OpticalDups
+			h.Molecules += s.Molecules
+		}
+	}
+	notes := append([]string(nil), r.notes...)
+	if sh := r.hash.Shift(); sh > 0 {
+		budget := r.opt.BudgetName
+		if budget == "" {
+			budget = fmt.Sprintf("of %d bytes", r.opt.MemoryBudget)
+		}
+		notes = append(notes, fmt.Sprintf("memory budget %s reached: counted only the molecules whose key hash falls in the lowest 1/%d of the hash range and multiplied their frequency counts by %d (an unbiased scaled copy; estimates are approximate)",
+			budget, uint64(1)<<sh, uint64(1)<<sh))
+	}
+	out := make([]Library, 0, n)
+	for i, l := range r.libs {
+		counts, err := complexity.FromMap(res[i].Freq)
+		if err != nil {
+			return nil, &reads.FileError{File: l.name, Err: fmt.Errorf("frequency counts: %w", err)}
+		}
+		out = append(out, Library{
+			Name:          l.name,
+			Counts:        counts,
+			Records:       l.records,
+			UsedFragments: res[i].Fragments,
+			OpticalDups:   res[i].OpticalDups,
+			Notes:         append(append([]string(nil), notes...), l.notes...),
+		})
+	}
+	return out, nil
+}
