@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"runtime/debug"
+	"strings"
 
 	"headroom/complexity"
 	"headroom/reads"
@@ -34,6 +35,7 @@ const (
 	ByLibrary   By = iota // @RG LB of the record's read group (read groups sharing LB are one library)
 	ByReadGroup           // @RG ID
 	ByFile                // the input (Input.Sample)
+	ByCell                // the cell barcode (Key.CellTag) within each library
 )
 
 // Mode says how molecules are counted.
@@ -93,6 +95,10 @@ type library struct {
 	name    string
 	records int64
 	notes   []string
+	cells   map[string]int // ByCell: the row of each cell of this library
+	parent  string         // ByCell: a cell row's library
+	cell    string         // ByCell: a cell row's barcode
+	isCell  bool
 }
 
 // run is the state of one counting pass over all inputs.
@@ -124,6 +130,26 @@ func (r *run) library(name string) int {
 	r.libs = append(r.libs, &library{name: name})
 	r.libIdx[name] = len(r.libs) - 1
 	return len(r.libs) - 1
+}
+
+// cellRow returns the row of a cell of library lib (ByCell).
+func (r *run) cellRow(lib int, cell []byte) int {
+	l := r.libs[lib]
+	if i, ok := l.cells[string(cell)]; ok {
+		return i
+	}
+	if l.cells == nil {
+		l.cells = map[string]int{}
+	}
+	name := l.name + "\x00" + string(cell)
+	if cell == nil {
+		name = l.name + "\x00\x01"
+	}
+	i := r.library(name)
+	c := r.libs[i]
+	c.parent, c.cell, c.isCell = l.name, string(cell), true
+	l.cells[string(cell)] = i
+	return i
 }
 
 func (r *run) libNote(lib int, format string, args ...any) {
@@ -180,6 +206,9 @@ func count(inputs []Input, opt Options, hashed bool) ([]Library, error) {
 		if ri.Format != reads.FormatFASTQ {
 			alignments = append(alignments, s)
 			continue
+		}
+		if opt.Key.CellTag != (reads.Tag{}) {
+			return nil, s.fail(fmt.Errorf("FASTQ has no cell barcodes: --cell-tag %s needs aligned input (BAM or SAM)", opt.Key.CellTag))
 		}
 		s.fq = reads.NewFASTQReader(ri)
 		first, err := s.fq.Peek()
@@ -239,6 +268,7 @@ func count(inputs []Input, opt Options, hashed bool) ([]Library, error) {
 			r.libNote(lib, "%d pairs lack the MC tag: the mate's 5' end was taken as PNEXT, ignoring its clipping (approximate; add MC with samtools fixmate -m)", n)
 		}
 	}
+	r.tagNotes()
 	return r.results()
 }
 
@@ -293,6 +323,9 @@ func (r *run) countAlignments(s *source, allowSorted bool) error {
 			r.progress(s, n, false)
 		}
 		lib := libOf(rec.RG)
+		if r.opt.By == ByCell {
+			lib = r.cellRow(lib, rec.Tag(r.opt.Key.CellTag))
+		}
 		r.libs[lib].records++
 		if sortedMode {
 			if rec.Ref < 0 {
@@ -434,14 +467,37 @@ func (r *run) results() ([]Library, error) {
 		notes = append(notes, fmt.Sprintf("memory budget %s reached: counted only the molecules whose key hash falls in the lowest 1/%d of the hash range and multiplied their frequency counts by %d (an unbiased scaled copy; estimates are approximate)",
 			budget, uint64(1)<<sh, uint64(1)<<sh))
 	}
+	// Cell rows: named by the barcode when all are of one library.
+	parents := map[string]bool{}
+	for _, l := range r.libs {
+		if l.isCell {
+			parents[l.parent] = true
+		}
+	}
 	out := make([]Library, 0, n)
 	for i, l := range r.libs {
+		if r.opt.By == ByCell && !l.isCell {
+			continue // a library whose records all went to its cells
+		}
+		name := l.name
+		if l.isCell {
+			name = l.cell
+			if l.cell == "" {
+				name = "no-cell"
+			}
+			if len(parents) > 1 {
+				name = l.parent + "/" + name
+			}
+		}
+		if res[i].UMIMerged > 0 {
+			l.notes = append(l.notes, fmt.Sprintf("%d UMIs one base from a more abundant UMI at the same position were merged into it as its sequencing errors (directional adjacency, Smith et al. 2017; --umi-errors 0 keeps them apart)", res[i].UMIMerged))
+		}
 		counts, err := complexity.FromMap(res[i].Freq)
 		if err != nil {
-			return nil, &reads.FileError{File: l.name, Err: fmt.Errorf("frequency counts: %w", err)}
+			return nil, &reads.FileError{File: name, Err: fmt.Errorf("frequency counts: %w", err)}
 		}
 		out = append(out, Library{
-			Name:          l.name,
+			Name:          name,
 			Counts:        counts,
 			Records:       l.records,
 			UsedFragments: res[i].Fragments,
@@ -450,4 +506,48 @@ func (r *run) results() ([]Library, error) {
 		})
 	}
 	return out, nil
+}
+
+// tagNotes says when the UMI or cell tag is absent from most fragments:
+// molecules are then told apart by position alone. For the default UMI
+// source (Options.UMIAsked false) only when the records carry another
+// tag that pipelines write UMIs in, since most data have no UMIs at all.
+func (r *run) tagNotes() {
+	k := &r.keyer
+	if k.Fragments == 0 {
+		return
+	}
+	src := r.umiSource()
+	if src != "" && 2*k.NoUMI > k.Fragments {
+		var best reads.Tag
+		var most int64
+		for _, t := range reads.CommonUMITags {
+			if n := k.OtherUMITags[t]; n > most {
+				best, most = t, n
+			}
+		}
+		sampled := min(k.NoUMI, reads.UMISample)
+		switch {
+		case 2*most > sampled:
+			r.note("the UMI %s is absent from %d of %d fragments, but %s is on %.0f%% of them: molecules were told apart by position only (give --umi-tag %s)",
+				src, k.NoUMI, k.Fragments, best, 100*float64(most)/float64(sampled), best)
+		case r.opt.UMIAsked:
+			r.note("the UMI %s is absent from %d of %d fragments: those were told apart by position only", src, k.NoUMI, k.Fragments)
+		}
+	}
+	if c := r.opt.Key.CellTag; c != (reads.Tag{}) && 2*k.NoCell > k.Fragments {
+		r.note("the cell tag %s is absent from %d of %d fragments: those are one cell (\"no-cell\" with --by cell)", c, k.NoCell, k.Fragments)
+	}
+}
+
+// umiSource names where UMIs were looked for, or "" for nowhere.
+func (r *run) umiSource() string {
+	var parts []string
+	for _, t := range r.opt.Key.UMITags {
+		parts = append(parts, "tag "+t.String())
+	}
+	if r.opt.Key.UMIFromName {
+		parts = append(parts, "in the read name")
+	}
+	return strings.Join(parts, " or ")
 }

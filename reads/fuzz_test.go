@@ -47,7 +47,8 @@ func FuzzParseSAMLine(f *testing.F) {
 		_ = Unclipped5(rec.Pos, rec.Cigar, rec.Flags&FlagReverse != 0)
 		_, _ = ParseSpot(rec.Name), NameUMI(rec.Name)
 		var k Keyer
-		k.Opt.OpticalNames, k.Opt.UMIFromName = true, true
+		k.Opt.OpticalNames, k.Opt.UMIFromName, k.Opt.Collapse = true, true, true
+		k.Opt.UMITags, k.Opt.CellTag = []Tag{{'R', 'X'}, {'B', 'X'}}, Tag{'C', 'B'}
 		k.Alignment(&rec, 0)
 	})
 }

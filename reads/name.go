@@ -78,20 +78,3 @@ func NameUMI(name []byte) []byte {
 	}
 	return nil
 }
-
-// CommentUMI returns the value of an RX:Z: field in a FASTQ comment
-// (as written by samtools fastq -T RX), or nil.
-func CommentUMI(comment []byte) []byte {
-	for len(comment) > 0 {
-		var w []byte
-		if i := bytes.IndexAny(comment, " \t"); i >= 0 {
-			w, comment = comment[:i], comment[i+1:]
-		} else {
-			w, comment = comment, nil
-		}
-		if bytes.HasPrefix(w, []byte("RX:Z:")) {
-			return w[5:]
-		}
-	}
-	return nil
-}

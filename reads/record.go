@@ -35,13 +35,16 @@ type Record struct {
 	MatePos int32 // 0-based, -1 when absent
 	SeqLen  int32
 
-	// Optional fields; nil when the record does not have them.
+	// Optional fields; nil when the record does not have them. Others are
+	// found with Tag.
 	RG []byte
-	RX []byte
 	MC []byte // the mate's CIGAR text (MC:Z); "*" counts as absent
 
 	// MateCigar is MC parsed, set by the readers when MC is not nil.
 	MateCigar []CigarOp
+
+	bamAux []byte // the optional fields of a BAM record, checked
+	samAux []byte // the optional fields of a SAM line
 }
 
 // parseMC parses the MC tag the readers stored in rec.MC into

@@ -26,8 +26,9 @@ const readsUsage = `usage: headroom reads [flags] FILE...
 
 Counts how many times each distinct molecule was sequenced, per library, in
 BAM, SAM or FASTQ files (plain, gzip or BGZF; '-' reads standard input), and
-predicts what deeper sequencing of each library would give. Two FASTQ files in
-a row whose first read names agree are read as the two mates of one library.
+predicts what deeper sequencing of each library would give. FASTQ mate files
+are paired by their read names, in any order; lanes of one sample
+(NAME_S1_L001_R1_001.fastq.gz ...) are one library.
 
 Writes one summary row per library (TSV or JSON) to stdout or -o FILE, with the
 columns records, used_fragments and optical_dups, and on request the curve,
@@ -37,7 +38,10 @@ plot, HTML report and the frequency counts (--save-counts, for headroom merge).
 // readsConfig is the parsed command line of `headroom reads`.
 type readsConfig struct {
 	by        string
-	umi       string
+	umiTag    []string
+	cellTag   string
+	umiErrors int
+	sample    string
 	minMapQ   int
 	optical   int64
 	keyBases  int
@@ -51,8 +55,11 @@ func runReads(a *app, args []string) error {
 	fs.SetOutput(io.Discard)
 	s := addShared(fs)
 	var c readsConfig
-	fs.StringVar(&c.by, "by", "library", "one summary row per `UNIT`: library (@RG LB), read-group (@RG ID) or file")
-	fs.StringVar(&c.umi, "umi", "rx", "where UMIs come from: rx (the RX tag), name (the read name when a record has no RX), none")
+	fs.StringVar(&c.by, "by", "library", "one summary row per `UNIT`: library (@RG LB), read-group (@RG ID), file or cell (--cell-tag, default CB)")
+	fs.StringSliceVar(&c.umiTag, "umi-tag", []string{"RX"}, "where UMIs come from: `TAG[,TAG]`, the first a record has (e.g. RX, UB, BX); name for the read name; none")
+	fs.StringVar(&c.cellTag, "cell-tag", "", "tag of the cell barcode (`TAG`, e.g. CB): the cell is then part of each molecule")
+	fs.IntVar(&c.umiErrors, "umi-errors", 1, "merge UMIs within `N` mismatch of a more abundant UMI at the same position (directional adjacency); 0 = off")
+	fs.StringVar(&c.sample, "sample", "", "name the library of records that name none (FASTQ, no read group) `NAME`")
 	fs.IntVar(&c.minMapQ, "min-mapq", 0, "skip alignments with mapping quality below `Q`")
 	fs.Int64Var(&c.optical, "optical-distance", 100, "largest |dx| and |dy| in pixels of optical duplicates (`PX`; 2500 for patterned flow cells; 0 = off)")
 	fs.IntVar(&c.keyBases, "key-bases", 0, "FASTQ: leading bases of each mate in the molecule key (`N`; 0 = whole reads)")
@@ -69,15 +76,13 @@ func runReads(a *app, args []string) error {
 	if err := s.check(); err != nil {
 		return err
 	}
-	switch c.by {
-	case "library", "read-group", "file":
-	default:
-		return usagef("reads: --by must be library, read-group or file, not %q", c.by)
+	by, ok := map[string]dedup.By{"library": dedup.ByLibrary, "read-group": dedup.ByReadGroup, "file": dedup.ByFile, "cell": dedup.ByCell}[c.by]
+	if !ok {
+		return usagef("reads: --by must be library, read-group, file or cell, not %q", c.by)
 	}
-	switch c.umi {
-	case "rx", "name", "none":
-	default:
-		return usagef("reads: --umi must be rx, name or none, not %q", c.umi)
+	key, err := readsKeyOptions(fs, &c)
+	if err != nil {
+		return err
 	}
 	switch c.mode {
 	case "auto", "sorted", "hashed":
@@ -92,6 +97,9 @@ func runReads(a *app, args []string) error {
 	}
 	if c.keyBases < 0 {
 		return usagef("reads: --key-bases must be 0 or more, not %d", c.keyBases)
+	}
+	if c.umiErrors < 0 || c.umiErrors > 1 {
+		return usagef("reads: --umi-errors must be 0 or 1 (mismatches), not %d", c.umiErrors)
 	}
 	mem, err := readsParseSize(c.maxMemory)
 	if err != nil {
@@ -114,9 +122,10 @@ func runReads(a *app, args []string) error {
 		OpticalDistance: c.optical,
 		MemoryBudget:    mem,
 		BudgetName:      "--max-memory " + c.maxMemory,
-		By:              map[string]dedup.By{"library": dedup.ByLibrary, "read-group": dedup.ByReadGroup, "file": dedup.ByFile}[c.by],
+		By:              by,
 		Mode:            map[string]dedup.Mode{"auto": dedup.ModeAuto, "sorted": dedup.ModeSorted, "hashed": dedup.ModeHashed}[c.mode],
-		Key:             reads.KeyOptions{MinMapQ: c.minMapQ, UMIFromName: c.umi == "name", NoUMI: c.umi == "none", KeyBases: c.keyBases},
+		Key:             key,
+		UMIAsked:        fs.Changed("umi-tag"),
 		Threads:         s.threads,
 	}
 	in, err := a.readsInputs(c.inputs, s.showProgress(a), &opt)
@@ -142,6 +151,39 @@ func runReads(a *app, args []string) error {
 		}
 	}
 	return a.estimateAndWrite(s, runInfo{command: "reads", inputs: c.inputs}, samples)
+}
+
+// readsKeyOptions checks --umi-tag, --cell-tag and --umi-errors.
+func readsKeyOptions(fs *pflag.FlagSet, c *readsConfig) (reads.KeyOptions, error) {
+	k := reads.KeyOptions{MinMapQ: c.minMapQ, KeyBases: c.keyBases, Collapse: c.umiErrors > 0}
+	for _, t := range c.umiTag {
+		switch t {
+		case "none":
+			if len(c.umiTag) > 1 {
+				return k, usagef("reads: --umi-tag none cannot be combined with other sources")
+			}
+		case "name":
+			k.UMIFromName = true
+		default:
+			tag, err := reads.ParseTag(t)
+			if err != nil {
+				return k, usagef("reads: --umi-tag: %q is not a SAM tag name (two characters: a letter, then a letter or digit), name or none", t)
+			}
+			k.UMITags = append(k.UMITags, tag)
+		}
+	}
+	cell := c.cellTag
+	if cell == "" && c.by == "cell" {
+		cell = "CB"
+	}
+	if cell != "" {
+		tag, err := reads.ParseTag(cell)
+		if err != nil {
+			return k, usagef("reads: --cell-tag: %q is not a SAM tag name (two characters: a letter, then a letter or digit)", cell)
+		}
+		k.CellTag = tag
+	}
+	return k, nil
 }
 
 // readsParseSize reads 512M, 4G, 1e9, 1048576 (bytes; k, M, G, T are powers of 1024).
