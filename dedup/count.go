@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"path/filepath"
 	"runtime/debug"
 	"strings"
 
@@ -70,8 +71,11 @@ const progressEvery = 1 << 16
 
 // Count reads every input and returns one Library per library, in the
 // order they were first seen: alignment inputs first, then FASTQ. FASTQ
-// inputs in a row whose first read names agree (reads.MateName) are the
-// two mates of one library. When a coordinate-sorted pass finds records
+// files whose first read names agree (reads.MateName) are the two mates
+// of one library, in any order (the file whose first record says mate 2,
+// reads.MateNumber, is read second); a file whose first two records are
+// the mates of one name is interleaved. Inputs sharing a Sample (lanes of
+// one sample) are one library. When a coordinate-sorted pass finds records
 // out of order (ModeAuto) and every input can be reopened, Count counts
 // again by hashing and says so in the notes.
 //
@@ -162,7 +166,9 @@ type source struct {
 	index int
 	in    *reads.Input
 	fq    *reads.FASTQReader
-	first string // the first FASTQ read name, copied
+	first string // the first FASTQ read name (reads.MateName), copied
+	mate  int    // the mate number of the first record (reads.MateNumber)
+	inter bool   // interleaved: the first two records are mates
 }
 
 func (s *source) sample() string {
@@ -211,14 +217,22 @@ func count(inputs []Input, opt Options, hashed bool) ([]Library, error) {
 			return nil, s.fail(fmt.Errorf("FASTQ has no cell barcodes: --cell-tag %s needs aligned input (BAM or SAM)", opt.Key.CellTag))
 		}
 		s.fq = reads.NewFASTQReader(ri)
-		first, err := s.fq.Peek()
+		first, err := s.fq.Peek(0)
 		if err == io.EOF {
 			return nil, s.fail(errors.New("no FASTQ records"))
 		}
 		if err != nil {
 			return nil, s.fail(err)
 		}
-		s.first = string(first.Name)
+		s.first, s.mate = mateName(string(first.Name)), reads.MateNumber(first.Name, first.Comment)
+		second, err := s.fq.Peek(1)
+		if err != nil && err != io.EOF {
+			return nil, s.fail(err)
+		}
+		if err == nil && mateName(string(second.Name)) == s.first {
+			m2 := reads.MateNumber(second.Name, second.Comment)
+			s.inter = s.mate == 1 && m2 == 2 || s.mate == 0 && m2 == 0
+		}
 		fastqs = append(fastqs, s)
 	}
 	allowSorted := len(alignments) == 1 && !hashed
@@ -239,26 +253,8 @@ func count(inputs []Input, opt Options, hashed bool) ([]Library, error) {
 			return nil, err
 		}
 	}
-	for i := 0; i < len(fastqs); i++ {
-		if i+1 < len(fastqs) && mateName(fastqs[i].first) == mateName(fastqs[i+1].first) {
-			if err := r.countFASTQ(fastqs[i], fastqs[i+1]); err != nil {
-				return nil, err
-			}
-			i++
-			continue
-		}
-		if len(fastqs) > 1 {
-			// Say why this file is not half of a pair.
-			other := fastqs[(i+1)%len(fastqs)]
-			if i+1 == len(fastqs) && i > 0 {
-				other = fastqs[i-1]
-			}
-			r.libNote(r.library(fastqs[i].sample()), "read as single-end: its first read name %q does not match %q of %s (mates must be given as R1 R2 of the same reads)",
-				fastqs[i].first, other.first, other.Name)
-		}
-		if err := r.countFASTQ(fastqs[i], nil); err != nil {
-			return nil, err
-		}
+	if err := r.countFASTQs(fastqs); err != nil {
+		return nil, err
 	}
 	if hashed {
 		r.note("the header says coordinate-sorted but the records are not: counted by hashing instead")
@@ -397,17 +393,92 @@ func locus(h *reads.Header, ref, pos int32) string {
 	return fmt.Sprintf("%s:%d", h.Refs[ref], pos+1)
 }
 
+// countFASTQs pairs the FASTQ inputs by their first read names and
+// counts each file, pair or interleaved file.
+func (r *run) countFASTQs(fastqs []*source) error {
+	var order []string
+	byName := map[string][]*source{}
+	for _, s := range fastqs {
+		if s.inter {
+			order = append(order, "\x00"+s.Name)
+			byName["\x00"+s.Name] = []*source{s}
+			continue
+		}
+		if byName[s.first] == nil {
+			order = append(order, s.first)
+		}
+		byName[s.first] = append(byName[s.first], s)
+	}
+	// Files an instrument named as R1 and R2 of one sample and lane must
+	// pair: if they start with different reads, they cannot be read.
+	singles := map[reads.FASTQName]*source{}
+	for _, k := range order {
+		if g := byName[k]; len(g) == 1 && !g[0].inter {
+			if n, ok := reads.ParseFASTQName(filepath.Base(g[0].Name)); ok {
+				singles[n] = g[0]
+			}
+		}
+	}
+	for _, k := range order {
+		s1 := byName[k][0]
+		n, ok := reads.ParseFASTQName(filepath.Base(s1.Name))
+		if !ok || n.Read != 1 || singles[n] != s1 {
+			continue
+		}
+		m := n
+		m.Read = 2
+		if s2 := singles[m]; s2 != nil {
+			return s2.fail(fmt.Errorf("mates cannot be paired: %s and %s are R1 and R2 of sample %s, but %s starts with read %q and %s with %q (give mate files of the same reads, unfiltered or filtered together)",
+				s1.Name, s2.Name, n.Sample, s1.Name, s1.first, s2.Name, s2.first))
+		}
+	}
+	for _, k := range order {
+		g := byName[k]
+		switch {
+		case g[0].inter:
+			if err := r.countFASTQ(g[0], nil, true); err != nil {
+				return err
+			}
+		case len(g) == 1:
+			if g[0].mate != 0 && len(fastqs) > 1 {
+				r.libNote(r.library(g[0].sample()), "%s read as single-end: its first read %q says mate %d, but no other input starts with that read",
+					g[0].Name, g[0].first, g[0].mate)
+			}
+			if err := r.countFASTQ(g[0], nil, false); err != nil {
+				return err
+			}
+		case len(g) == 2:
+			a, b := g[0], g[1]
+			if a.mate != 0 && a.mate == b.mate {
+				return b.fail(fmt.Errorf("%s and %s both start with mate %d of read %q: give the other mate's file (or each file once)", a.Name, b.Name, a.mate, a.first))
+			}
+			if a.mate == 2 || b.mate == 1 {
+				a, b = b, a
+			}
+			if err := r.countFASTQ(a, b, false); err != nil {
+				return err
+			}
+		default:
+			return g[2].fail(fmt.Errorf("%d inputs start with the same read %q (%s, %s, %s...): give each mate file once", len(g), g[0].first, g[0].Name, g[1].Name, g[2].Name))
+		}
+	}
+	return nil
+}
+
 // countFASTQ counts one FASTQ file, or a pair of mate files (s2 not nil),
 // each inflating ahead in its own goroutine (reads.Open) so that two
 // mates' files use two cores.
-func (r *run) countFASTQ(s1, s2 *source) error {
+func (r *run) countFASTQ(s1, s2 *source, interleaved bool) error {
 	lib := r.library(s1.sample())
 	L := r.libs[lib]
 	r.progress(s1, 0, false)
 	var rec1, rec2 reads.FASTQRecord
 	var pr *reads.PairReader
-	if s2 != nil {
+	switch {
+	case s2 != nil:
 		pr = reads.NewPairReader(s1.fq, s2.fq, s1.Name, s2.Name)
+	case interleaved:
+		pr = reads.NewInterleavedReader(s1.fq, s1.Name)
 	}
 	var pairs int64
 	for {

@@ -39,9 +39,8 @@ type FASTQReader struct {
 	n     int64 // records read
 	err   error
 
-	peeked  bool // rec holds a record that the next Read returns again
-	rec     FASTQRecord
-	recLine int64 // first line of the last record returned
+	peeked  []peeked // records Peek read ahead, owned copies
+	recLine int64    // first line of the last record returned
 }
 
 const fastqBufSize = 1 << 20
@@ -99,13 +98,23 @@ func (f *FASTQReader) fill() error {
 	return err
 }
 
+// peeked is a record read ahead by Peek.
+type peeked struct {
+	rec  FASTQRecord
+	line int64
+}
+
 // Read reads the next record into rec. It returns io.EOF after the last.
 func (f *FASTQReader) Read(rec *FASTQRecord) error {
-	if f.peeked {
-		f.peeked = false
-		*rec = f.rec
+	if len(f.peeked) > 0 {
+		*rec, f.recLine = f.peeked[0].rec, f.peeked[0].line
+		f.peeked = f.peeked[1:]
 		return nil
 	}
+	return f.next(rec)
+}
+
+func (f *FASTQReader) next(rec *FASTQRecord) error {
 	if f.err != nil {
 		return f.err
 	}
@@ -127,16 +136,24 @@ func (f *FASTQReader) Read(rec *FASTQRecord) error {
 	return nil
 }
 
-// Peek returns the next record without consuming it: the next Read
-// returns it again. Its slices stay valid until the Read after that.
-func (f *FASTQReader) Peek() (*FASTQRecord, error) {
-	if !f.peeked {
-		if err := f.Read(&f.rec); err != nil {
+// Peek returns the i-th record ahead (0 is the next) without consuming
+// it: Read returns it in turn. The record is a copy that stays valid.
+func (f *FASTQReader) Peek(i int) (*FASTQRecord, error) {
+	for len(f.peeked) <= i {
+		var rec FASTQRecord
+		if err := f.next(&rec); err != nil {
 			return nil, err
 		}
-		f.peeked = true
+		own := func(b []byte) []byte {
+			if b == nil {
+				return nil
+			}
+			return append([]byte{}, b...)
+		}
+		rec = FASTQRecord{Name: own(rec.Name), Comment: own(rec.Comment), Seq: own(rec.Seq), Qual: own(rec.Qual)}
+		f.peeked = append(f.peeked, peeked{rec, f.recLine})
 	}
-	return &f.rec, nil
+	return &f.peeked[i].rec, nil
 }
 
 func (f *FASTQReader) read(rec *FASTQRecord) error {

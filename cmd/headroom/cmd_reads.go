@@ -128,7 +128,7 @@ func runReads(a *app, args []string) error {
 		UMIAsked:        fs.Changed("umi-tag"),
 		Threads:         s.threads,
 	}
-	in, err := a.readsInputs(c.inputs, s.showProgress(a), &opt)
+	in, err := a.readsInputs(&c, s.showProgress(a), &opt)
 	defer in.close()
 	if err != nil {
 		return err
@@ -229,8 +229,9 @@ func (f *readsFiles) close() {
 // readsInputs opens the files (or standard input for '-'), names their
 // samples and, when progress is on, sets opt.Progress to draw a bar per
 // input over its compressed bytes.
-func (a *app) readsInputs(paths []string, progress bool, opt *dedup.Options) (*readsFiles, error) {
+func (a *app) readsInputs(c *readsConfig, progress bool, opt *dedup.Options) (*readsFiles, error) {
 	f := &readsFiles{}
+	paths := c.inputs
 	// Sample names for inputs without read groups: the base name, or the
 	// path as given when two inputs share a base name.
 	base := map[string]int{}
@@ -242,6 +243,12 @@ func (a *app) readsInputs(paths []string, progress bool, opt *dedup.Options) (*r
 		sample := filepath.Base(name)
 		if base[sample] > 1 {
 			sample = name
+		}
+		if n, ok := reads.ParseFASTQName(filepath.Base(name)); ok {
+			sample = n.Sample // lanes and mates of one sample are one library
+		}
+		if c.sample != "" {
+			sample = c.sample
 		}
 		in := dedup.Input{Name: name, Sample: sample}
 		cr := &readsCountingReader{}
