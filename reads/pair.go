@@ -12,10 +12,10 @@ import (
 type PairReader struct {
 	r           [2]*FASTQReader
 	interleaved bool
-	name [2]string // the files' names, for errors
-	own  []byte    // interleaved: the first mate's bytes, copied
-	n    int64     // pairs read
-	err  error
+	name        [2]string // the files' names, for errors
+	own         []byte    // interleaved: the first mate's bytes, copied
+	n           int64     // pairs read
+	err         error
 }
 
 // NewPairReader returns a reader of the mates in r1 and r2, named name1
