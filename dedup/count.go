@@ -527,6 +527,7 @@ func (r *run) results() ([]Library, error) {
 			h.Fragments += s.Fragments
 			h.OpticalDups += s.OpticalDups
 			h.Molecules += s.Molecules
+			h.UMIMerged += s.UMIMerged
 		}
 	}
 	notes := append([]string(nil), r.notes...)
