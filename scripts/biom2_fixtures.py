@@ -22,7 +22,9 @@ groups, layout versions, chunk indexes, shuffle and Fletcher-32 filters,
 big-endian and integer datatypes, fixed-length strings.
 
 bad/ holds malformed BIOM 2.1 files for the bad-input corpus
-(scripts/gen_bad_corpus.py copies them into testdata/bad/).
+(scripts/gen_bad_corpus.py copies them into testdata/bad/). The script
+also writes the seed corpus of internal/hdf5's FuzzHDF5 (tiny tables in
+each supported structure, cut and flipped).
 
 Deterministic in content; HDF5 files written by biom-format carry a
 creation date attribute, so re-running changes those bytes only.
@@ -173,6 +175,52 @@ def main():
         chunk = fh.read(min(8, size - 2))
         fh.seek(off + 2)
         fh.write(bytes(b ^ 0x5A for b in chunk))
+
+    fuzz_seeds()
+
+
+FUZZ = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "internal", "hdf5", "testdata", "fuzz", "FuzzHDF5")
+
+
+def go_bytes(data):
+    """A Go fuzz corpus file ("go test fuzz v1") holding one []byte."""
+    out = []
+    for b in data:
+        c = chr(b)
+        out.append(c if 32 <= b < 127 and c not in '"\\' else "\\x%02x" % b)
+    return 'go test fuzz v1\n[]byte("%s")\n' % "".join(out)
+
+
+def fuzz_seeds():
+    """Seeds for FuzzHDF5: tiny BIOM 2.1 layouts (2 taxa, 2 samples) in the
+    structures the reader supports, and cut and flipped variants."""
+    if os.path.isdir(FUZZ):
+        shutil.rmtree(FUZZ)
+    os.makedirs(FUZZ)
+    tiny = Table(np.array([[3.0, 0.0], [1.0, 2.0]]), ["ASV1", "ASV2"], ["pond-A", "pond-B"])
+    seeds = {}
+    for name, libver, kw in (("earliest", "earliest", {}),
+                             ("earliest-gzip", "earliest", dict(chunks=(2,), compression="gzip", shuffle=True, fletcher32=True)),
+                             ("latest", "latest", {}),
+                             ("latest-chunked", "latest", dict(chunks=(1,), compression="gzip", shuffle=True))):
+        path = os.path.join(OUT, "tiny.h5")
+        with h5py.File(path, "w", libver=libver) as f:
+            write_layout(f, tiny, **kw)
+        with open(path, "rb") as fh:
+            seeds[name] = fh.read()
+        os.remove(path)
+    # Whole files of every structure are added by FuzzHDF5 itself from
+    # testdata/taxa/biom2; the corpus keeps the small ones and the variants.
+    variants = {"latest": seeds["latest"], "latest-chunked": seeds["latest-chunked"]}
+    for name, data in seeds.items():
+        variants[name + "-cut"] = data[:len(data) * 2 // 3]
+    flipped = bytearray(seeds["latest-chunked"])
+    for i in range(97, len(flipped), 509):
+        flipped[i] ^= 0x10
+    variants["latest-chunked-flipped"] = bytes(flipped)
+    for vn, vd in variants.items():
+        with open(os.path.join(FUZZ, vn), "w") as f:
+            f.write(go_bytes(vd))
 
 
 if __name__ == "__main__":

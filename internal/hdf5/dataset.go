@@ -81,7 +81,7 @@ func (o *Object) Dataset() (*Dataset, error) {
 	if null {
 		d.n = 0
 	}
-	if d.n > uint64(1)<<48 {
+	if d.n > maxElements {
 		return nil, errf(o.Path, ErrCorrupt, "dataset of %d elements", d.n)
 	}
 	if m := o.find(msgFilters); m != nil {
@@ -234,7 +234,7 @@ func (d *Dataset) chunked(dims []uint64, index uint8) error {
 	if len(dims) == 2 {
 		d.chunkN = dims[0]
 	}
-	if d.chunkN == 0 || d.chunkN*uint64(d.typ.size) > maxChunk {
+	if d.chunkN == 0 || d.chunkN > maxChunk || d.chunkN*uint64(d.typ.size) > maxChunk {
 		return errf(d.Path, ErrUnsupported, "chunks of %d elements", d.chunkN)
 	}
 	return nil
@@ -256,10 +256,10 @@ func (d *Dataset) raw(start, n uint64) ([]byte, error) {
 	if start > d.n || n > d.n-start {
 		return nil, errf(d.Path, ErrCorrupt, "elements [%d, %d) asked of a dataset of %d", start, start+n, d.n)
 	}
-	if n > maxSlice {
+	es := uint64(d.typ.size)
+	if n > maxSlice || n*es > maxChunk {
 		return nil, errf(d.Path, ErrUnsupported, "a read of %d elements at once", n)
 	}
-	es := uint64(d.typ.size)
 	switch d.layout {
 	case 0:
 		return d.compact[start*es : (start+n)*es], nil
@@ -269,6 +269,9 @@ func (d *Dataset) raw(start, n uint64) ([]byte, error) {
 				return nil, errf(d.Path, ErrUnsupported, "storage never written, with a non-zero fill value")
 			}
 			return make([]byte, n*es), nil
+		}
+		if d.addr > uint64(d.f.size) {
+			return nil, errf(d.Path, ErrCorrupt, "data address %#x beyond the end of the file", d.addr)
 		}
 		return d.f.readAddr(d.Path, d.addr+start*es, n*es)
 	}
@@ -392,8 +395,8 @@ func (d *Dataset) buildIndex() error {
 		c.addr = d.addr
 		d.chunks = []chunkRef{c}
 	case d.index == 2:
-		if nc > 1<<24 {
-			return errf(d.Path, ErrUnsupported, "%d chunks", nc)
+		if d.addr > uint64(d.f.size) || nc*d.chunkN*es > uint64(d.f.size)-d.addr {
+			return errf(d.Path, ErrCorrupt, "%d chunks of %d bytes at %#x reach beyond the end of the file", nc, d.chunkN*es, d.addr)
 		}
 		for k := uint64(0); k < nc; k++ {
 			d.chunks = append(d.chunks, chunkRef{first: k * d.chunkN, addr: d.addr + k*d.chunkN*es})

@@ -48,6 +48,9 @@ const (
 	maxHeap   = 1 << 26 // bytes of a local heap or a global heap collection
 	maxChunk  = 1 << 28 // bytes of one decoded chunk
 	maxDepth  = 32      // levels of a B-tree
+
+	maxElements = 1 << 40 // elements of one dataset
+	maxTypeSize = 1 << 20 // bytes of one element (a fixed-length string)
 )
 
 // File is an open HDF5 file.
@@ -64,8 +67,10 @@ type File struct {
 }
 
 // Open reads the superblock of the HDF5 file r of size bytes.
-func Open(r io.ReaderAt, size int64) (*File, error) {
-	f := &File{r: r, size: size, gheaps: map[uint64][]byte{}}
+func Open(r io.ReaderAt, size int64) (*File, error) { return open(r, size, true) }
+
+func open(r io.ReaderAt, size int64, checksums bool) (*File, error) {
+	f := &File{r: r, size: size, gheaps: map[uint64][]byte{}, noChecksums: !checksums}
 	head, err := f.read("", 0, 12)
 	if err != nil {
 		return nil, err

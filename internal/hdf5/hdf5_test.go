@@ -29,7 +29,7 @@ func TestLookup3(t *testing.T) {
 
 var fixtures = filepath.Join("..", "..", "testdata", "taxa", "biom2")
 
-func open(t *testing.T, name string) *File {
+func openFixture(t *testing.T, name string) *File {
 	t.Helper()
 	fh, err := os.Open(filepath.Join(fixtures, name))
 	if err != nil {
@@ -70,7 +70,7 @@ func TestFixtureStructures(t *testing.T) {
 		{"small.biom", true, 1, 0, nil, false},
 		{"small_gzip.biom", true, 2, 0, []uint16{1}, false},
 	} {
-		f := open(t, c.file)
+		f := openFixture(t, c.file)
 		root, err := f.Root()
 		if err != nil {
 			t.Fatal(err)
@@ -100,7 +100,7 @@ func TestFixtureStructures(t *testing.T) {
 // "pond-A00", "pond-B01", ...; format-version [2, 1]).
 func TestStringsAndAttributes(t *testing.T) {
 	for _, name := range []string{"h5-earliest-contiguous.biom", "h5-fixed-ids.biom", "small.biom", "h5-latest-chunked.biom"} {
-		f := open(t, name)
+		f := openFixture(t, name)
 		d, err := f.Dataset("/sample/ids")
 		if err != nil {
 			t.Fatal(err)

@@ -35,7 +35,7 @@ func (f *File) parseDatatype(path string, b []byte) (datatype, error) {
 	size := int(p.u32())
 	class := cv & 0x0f
 	var t datatype
-	if p.bad || size <= 0 {
+	if p.bad || size <= 0 || size > maxTypeSize {
 		return t, errf(path, ErrCorrupt, "datatype message cut short or of size %d", size)
 	}
 	t.size = size
