@@ -162,6 +162,13 @@ def main():
     with h5py.File(os.path.join(bad, "not_biom.h5"), "w") as f:
         f.create_dataset("temperature", data=np.arange(10.0))
         f["temperature"].attrs["units"] = "kelvin"
+    # Newest-format groups of more than 8 members and objects of more
+    # than 8 attributes use dense storage (fractal heaps): refused.
+    with h5py.File(os.path.join(bad, "dense.biom"), "w", libver="latest") as f:
+        write_layout(f, small)
+        for i in range(10):
+            f["sample"].create_group("extra%d" % i)
+            f.attrs["extra%d" % i] = i
     with h5py.File(os.path.join(bad, "inflate.biom"), "w") as f:
         write_layout(f, table(8, 40, 4), chunks=(8,), compression="gzip")
     # Damage one deflate stream of sample/matrix/data: find the chunk by

@@ -458,6 +458,8 @@ for name, want, what in (
         ("indptr_decreasing", "/sample/matrix/indptr: entries 1 and 2 are 1 and 0", "BIOM 2.1 whose sample indptr falls"),
         ("indptr_beyond", "/sample/matrix/indptr: last entry", "BIOM 2.1 whose sample indptr ends beyond data"),
         ("inflate", "/sample/matrix/data: chunk 0 does not inflate", "BIOM 2.1 with a damaged deflate chunk"),
+        ("dense", "HDF5 object /sample: HDF5 feature not supported: dense link storage",
+         "BIOM 2.1 in the newest HDF5 format with 13 members in /sample (dense link storage, not read)"),
 ):
     put("taxa_h5_%s.biom" % name, biom2(os.path.join("bad", name + ".biom")))
     case("taxa_h5_" + name, "taxa @taxa_h5_%s.biom" % name, 1, want, what)

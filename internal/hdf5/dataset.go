@@ -284,7 +284,11 @@ func (d *Dataset) raw(start, n uint64) ([]byte, error) {
 		}
 		lo := (i - k*d.chunkN) * es
 		hi := min(start+n-k*d.chunkN, d.chunkN) * es
-		out = append(out, c[lo:hi]...)
+		if c == nil {
+			out = append(out, make([]byte, hi-lo)...) // never written: zeros
+		} else {
+			out = append(out, c[lo:hi]...)
+		}
 		i = (k + 1) * d.chunkN
 	}
 	return out, nil
@@ -317,7 +321,8 @@ func (d *Dataset) Strings(start uint64, dst []string) error {
 	return d.f.strings(d.Path, d.typ, b, dst)
 }
 
-// chunk returns decoded chunk k (cached).
+// chunk returns decoded chunk k (cached), nil for a chunk never written
+// (whose elements are the fill value, zero).
 func (d *Dataset) chunk(k uint64) ([]byte, error) {
 	if k == d.cached {
 		return d.buf, nil
@@ -335,28 +340,27 @@ func (d *Dataset) chunk(k uint64) ([]byte, error) {
 		if d.fillNZ {
 			return nil, errf(d.Path, ErrUnsupported, "chunk %d never written, with a non-zero fill value", k)
 		}
-		d.buf = make([]byte, want)
-	} else {
-		c := d.chunks[i]
-		stored := c.size
-		if stored == 0 {
-			stored = want
-		}
-		if stored > maxChunk {
-			return nil, errf(d.Path, ErrCorrupt, "chunk %d of %d bytes", k, stored)
-		}
-		b, err := d.f.readAddr(d.Path, c.addr, stored)
-		if err != nil {
-			return nil, err
-		}
-		if b, err = d.unfilter(k, b, c.mask, want); err != nil {
-			return nil, err
-		}
-		if uint64(len(b)) != want {
-			return nil, errf(d.Path, ErrCorrupt, "chunk %d holds %d bytes, %d expected", k, len(b), want)
-		}
-		d.buf = b
+		return nil, nil
 	}
+	c := d.chunks[i]
+	stored := c.size
+	if stored == 0 {
+		stored = want
+	}
+	if stored > maxChunk {
+		return nil, errf(d.Path, ErrCorrupt, "chunk %d of %d bytes", k, stored)
+	}
+	b, err := d.f.readAddr(d.Path, c.addr, stored)
+	if err != nil {
+		return nil, err
+	}
+	if b, err = d.unfilter(k, b, c.mask, want); err != nil {
+		return nil, err
+	}
+	if uint64(len(b)) != want {
+		return nil, errf(d.Path, ErrCorrupt, "chunk %d holds %d bytes, %d expected", k, len(b), want)
+	}
+	d.buf = b
 	d.cached = k
 	return d.buf, nil
 }

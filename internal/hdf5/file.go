@@ -46,11 +46,11 @@ var Signature = []byte("\x89HDF\r\n\x1a\n")
 const (
 	maxHeader = 1 << 24 // bytes of one object header, continuations included
 	maxHeap   = 1 << 26 // bytes of a local heap or a global heap collection
-	maxChunk  = 1 << 28 // bytes of one decoded chunk
+	maxChunk  = 1 << 26 // bytes of one decoded chunk
 	maxDepth  = 32      // levels of a B-tree
 
 	maxElements = 1 << 40 // elements of one dataset
-	maxTypeSize = 1 << 20 // bytes of one element (a fixed-length string)
+	maxTypeSize = 1 << 16 // bytes of one element (a fixed-length string)
 )
 
 // File is an open HDF5 file.

@@ -73,9 +73,9 @@ func FuzzHDF5(f *testing.F) {
 					checkErr(t, err)
 					continue
 				}
-				n := min(d.Len(), 5000)
-				for start := uint64(0); start < n; start += 1000 {
-					k := min(1000, n-start)
+				n := min(d.Len(), 2000)
+				for start := uint64(0); start < n; start += 100 {
+					k := min(100, n-start)
 					var err error
 					switch d.Class() {
 					case Integer:

@@ -1,9 +1,11 @@
 package hdf5
 
 import (
+	"errors"
 	"os"
 	"path/filepath"
 	"reflect"
+	"strings"
 	"testing"
 )
 
@@ -122,5 +124,21 @@ func TestStringsAndAttributes(t *testing.T) {
 		} else if s, err := a.Strings(); err != nil || len(s) != 1 || s[0] != "invented pond survey" {
 			t.Errorf("%s: id %q, %v", name, s, err)
 		}
+	}
+}
+
+// Dense storage (h5py libver="latest", more than 8 members or attributes;
+// scripts/biom2_fixtures.py bad/dense.biom) is refused by name.
+func TestDenseRefused(t *testing.T) {
+	f := openFixture(t, filepath.Join("bad", "dense.biom"))
+	root, err := f.Root()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := root.Attr("shape"); !errors.Is(err, ErrUnsupported) || !strings.Contains(err.Error(), "dense attribute storage") {
+		t.Errorf("attribute: %v", err)
+	}
+	if _, err := f.Lookup("/sample/matrix"); !errors.Is(err, ErrUnsupported) || !strings.Contains(err.Error(), "/sample: dense link storage") {
+		t.Errorf("link: %v", err)
 	}
 }

@@ -142,7 +142,7 @@ type Attr struct {
 // Attr returns the attribute name of o; ErrNotFound when there is none
 // in compact storage.
 func (o *Object) Attr(name string) (*Attr, error) {
-	path := o.Path + "@" + name
+	path := o.Path + " (attribute " + name + ")"
 	for _, m := range o.msgs {
 		if m.typ != msgAttribute {
 			continue
@@ -190,6 +190,16 @@ func (o *Object) Attr(name string) (*Attr, error) {
 			return nil, errf(path, ErrCorrupt, "attribute value shorter than its %v elements of %d bytes", dims, t.size)
 		}
 		return &Attr{f: o.f, path: path, typ: t, dims: dims, data: p.take(int(n) * t.size)}, nil
+	}
+	if m := o.find(msgAttrInfo); m != nil {
+		p := &dec{b: m.data, f: o.f}
+		p.skip(1)
+		if p.u8()&1 != 0 {
+			p.skip(2)
+		}
+		if heap := p.addr(); !p.bad && heap != undef {
+			return nil, errf(path, ErrUnsupported, "dense attribute storage (fractal heap)")
+		}
 	}
 	return nil, errf(path, ErrNotFound, "no such attribute")
 }
