@@ -13,9 +13,10 @@ var (
 	ErrDuplicate = errors.New("amplicon: duplicate identifier")
 	ErrEmpty     = errors.New("amplicon: empty table")
 	ErrTruncated = errors.New("amplicon: truncated input")
-	ErrHDF5      = errors.New("amplicon: BIOM 2 (HDF5) file")
+	ErrHDF5      = errors.New("amplicon: unsupported HDF5 feature")
 	ErrSyntax    = errors.New("amplicon: malformed input")
 	ErrTooLarge  = errors.New("amplicon: value too large")
+	ErrWrongFile = errors.New("amplicon: not a taxon count table")
 )
 
 // ParseError is bad input at a position. Line and Column are 1-based;

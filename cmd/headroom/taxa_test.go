@@ -263,7 +263,7 @@ func TestTaxaBadInput(t *testing.T) {
 		{"biomfrac", biom(`"matrix_type":"sparse","data":[[0,0,1.5]]`), ":1: column 260: \"1.5\" is not a whole number"},
 		{"biomneg", biom(`"matrix_type":"dense","data":[[1,2],[3,-4]]`), "negative count"},
 		{"biomdup", `{"shape":[1,2],"matrix_type":"dense","rows":[{"id":"T"}],"columns":[{"id":"A"},{"id":"A"}],"data":[[1,2]]}`, "sample ID \"A\" repeated"},
-		{"hdf5", "\x89HDF\r\n\x1a\n\x00\x00\x00binary", ":1: column 1: this is a BIOM 2 file (HDF5)"},
+		{"hdf5", "\x89HDF\r\n\x1a\n\x00\x00\x00binary", ": HDF5: 24 bytes at address 0 lie beyond the end of the file"},
 	}
 	out := writeFile(t, dir, "keep.tsv", "old contents\n")
 	adv := filepath.Join(dir, "advice.tsv")
