@@ -85,6 +85,12 @@ func bins(p []float64, nb int) trueModel {
 	return m
 }
 
+var debug *bool
+
+// planHorizon is the CLI's cap: a sample's depth after the next run is
+// at most this many times its reads now.
+const planHorizon = 100
+
 type poolResult struct {
 	binErr            float64 // largest |binned/exact − 1| seen
 	k                 int
@@ -96,6 +102,7 @@ func main() {
 	pools := flag.Int("pools", 200, "simulated pools")
 	seed := flag.Uint64("seed", 1, "seed")
 	workers := flag.Int("workers", 2, "pools in parallel")
+	debug = flag.Bool("debug", false, "describe on stderr every pool whose efficiency is below 0.9")
 	flag.Parse()
 	res := make([]poolResult, *pools)
 	var wg sync.WaitGroup
@@ -170,8 +177,15 @@ func runPool(seed, i uint64) poolResult {
 		}
 		return g
 	}
-	ours, _ := complexity.SplitBudget(est, usable, B)
-	best, _ := complexity.SplitBudget(truth, usable, B)
+	// As the CLI does: no sample is planned past 100x its reads, the
+	// deepest its curve's accuracy was measured at. The true optimum
+	// knows no such limit.
+	caps := make([]float64, k)
+	for j := range caps {
+		caps[j] = (planHorizon - 1) * n[j]
+	}
+	ours, _ := complexity.SplitBudget(est, usable, B, caps)
+	best, _ := complexity.SplitBudget(truth, usable, B, nil)
 	same := make([]float64, k)
 	even := make([]float64, k)
 	for j := range same {
@@ -179,6 +193,17 @@ func runPool(seed, i uint64) poolResult {
 		even[j] = float64(B) / float64(k)
 	}
 	opt := gain(best)
+	if *debug && gain(ours)/opt < 0.9 {
+		for j := range est {
+			m := "nil"
+			if est[j].Model != nil {
+				m = est[j].Model.Name()
+			}
+			fmt.Fprintf(os.Stderr, "pool %d lib %d %s N=%.0f d=%d ours=%d best=%d est=%.0f true=%.0f | estNow=%.0f trueNow=%.0f\n", i, j, m, n[j], est[j].Counts.Distinct(), ours[j], best[j],
+				est[j].Distinct(n[j]+float64(ours[j])), truth[j].Model.Distinct(n[j]+float64(ours[j])), est[j].Distinct(n[j]), truth[j].Model.Distinct(n[j]))
+		}
+		fmt.Fprintf(os.Stderr, "pool %d eff %.3f\n", i, gain(ours)/opt)
+	}
 	return poolResult{binErr: binErr, k: k, budgetX: budgetX, eff: gain(ours) / opt,
 		same: gain(complexity.Apportion(same, B)) / opt, evenly: gain(complexity.Apportion(even, B)) / opt}
 }
