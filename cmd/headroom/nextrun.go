@@ -65,11 +65,11 @@ func newPlan(s *shared, samples []sampleInput) (*plan, error) {
 	usable := make([]float64, len(samples))
 	for i, e := range est {
 		in := e.in
-		curves[i] = complexity.Curve{Counts: in.counts, Model: e.rep.Model}
+		curves[i] = e.rep.Curve
 		usable[i] = in.usable()
 		pl.rows = append(pl.rows, planRow{name: in.name, readsNow: in.bought(), shareNow: shares[i],
 			usable: usable[i], curveNow: float64(in.counts.Reads()), distinctNow: in.counts.Distinct()})
-		if e.rep.Model == nil {
+		if e.rep.Curve.Model == nil {
 			pl.rows[i].notes = append(pl.rows[i].notes, "no curve beyond the observed depth: not planned")
 		}
 	}

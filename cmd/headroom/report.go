@@ -80,8 +80,7 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 		for _, a := range e.reach {
 			row = append(row, reportCell{Text: withInterval(a.reads, a.lo, a.hi)})
 		}
-		m, _, _ := strings.Cut(string(r.Method), "; total=")
-		row = append(row, reportCell{Text: m, Class: "l"}, reportCell{Text: pct(r.BacktestError)})
+		row = append(row, reportCell{Text: string(r.Method), Class: "l"}, reportCell{Text: pct(r.BacktestError)})
 		rows = append(rows, row)
 		counts[r.Verdict]++
 		if all := sampleNotes(e); len(all) > 0 {

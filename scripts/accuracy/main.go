@@ -18,7 +18,7 @@
 // few times the library), one draw each; -quick uses S ≤ 1e6 and N/S ∈
 // {0.3, 1}. Everything is seeded: the same -seed gives the same table.
 // Seed 1 is the reporting set; the interval calibration in
-// complexity/interval.go (ModelErrorKnots) and the choices made in
+// complexity/interval.go (the default model-error knots) and the choices made in
 // complexity/select.go were derived from seed 2 (-seed 2 -calibrate prints
 // the knots), so reported coverage and errors are measured on draws the
 // tuning never saw.
@@ -46,18 +46,18 @@ import (
 
 var multiples = []float64{2, 10, 30, 100}
 
-// estimator is one row of the table.
+// estimator is one row of the table: a curve fitted by
+// complexity.Baseline under the name fit.
 type estimator struct {
-	name string
-	fit  func(c complexity.Counts, maxT float64) (complexity.Model, error)
+	name, fit string
 }
 
 var baselines = []estimator{
-	{"poisson (Lander–Waterman)", func(c complexity.Counts, _ float64) (complexity.Model, error) { return complexity.FitPoisson(c) }},
-	{"ztnb (full ML)", func(c complexity.Counts, _ float64) (complexity.Model, error) { return complexity.FitZTNB(c) }},
-	{"rfa (textbook)", func(c complexity.Counts, maxT float64) (complexity.Model, error) { return complexity.FitRFA(c, maxT) }},
-	{"shen (Chao1-based)", fitShen},
-	{"lognormal (PLN ML)", func(c complexity.Counts, _ float64) (complexity.Model, error) { return complexity.FitLognormal(c) }},
+	{"poisson (Lander–Waterman)", "poisson"},
+	{"ztnb (full ML)", "ztnb"},
+	{"rfa (textbook)", "rfa"},
+	{"shen (Chao1-based)", "shen"},
+	{"lognormal (PLN ML)", "lognormal"},
 }
 
 const headroomName = "headroom (Analyze)"
@@ -77,6 +77,53 @@ type caseResult struct {
 	truth  [4]float64
 	res    []result // baselines..., headroom
 	secs   float64
+	// reach are headroom's answers to the reach targets of reachTargets,
+	// whose true depth is reachMultiples[k] times the reads; elastic[k]
+	// is the true curve's elasticity T·D'(T)/D(T) there.
+	reach   []complexity.Reached
+	elastic []float64
+}
+
+// reachMultiples are the true depths (multiples of the sample's reads) of
+// the reach targets: each kind's target is set to its true value there.
+var reachMultiples = []float64{3, 10, 30}
+
+var reachKinds = []complexity.TargetKind{complexity.TargetDistinct, complexity.TargetDup, complexity.TargetCoverage, complexity.TargetYield}
+
+// reachTargets returns, for each kind and each reach multiple m (kind
+// major), the target whose true depth is T = m·N for the library p:
+// E[D(T)] = Σ(1 − e^{−T p_i}), the duplicate fraction 1 − E[D(T)]/T, the
+// coverage Σ p_i (1 − e^{−T p_i}) (the chance that the next read is of a
+// unit already seen) and the marginal yield dE[D]/dT = Σ p_i e^{−T p_i};
+// and the elasticity T·D'(T)/D(T) at each multiple: a relative error ε of
+// D near T is a relative error of about ε/elasticity of the depth.
+func reachTargets(p []float64, n float64) (out []complexity.Target, elastic []float64) {
+	for _, k := range reachKinds {
+		for _, m := range reachMultiples {
+			T := m * n
+			var d, cov, y float64
+			for _, q := range p {
+				e := math.Exp(-T * q)
+				d += -math.Expm1(-T * q)
+				cov += q * -math.Expm1(-T*q)
+				y += q * e
+			}
+			if k == reachKinds[0] {
+				elastic = append(elastic, T*y/d)
+			}
+			v := d
+			switch k {
+			case complexity.TargetDup:
+				v = 1 - d/T
+			case complexity.TargetCoverage:
+				v = cov
+			case complexity.TargetYield:
+				v = y
+			}
+			out = append(out, complexity.Target{Kind: k, Value: v})
+		}
+	}
+	return out, elastic
 }
 
 func main() {
@@ -91,7 +138,7 @@ func main() {
 	calibrate := flag.Bool("calibrate", false, "derive the interval model-error knots (use a seed other than the reporting one)")
 	flag.Parse()
 	if *calibrate {
-		complexity.ModelErrorKnots = nil // bootstrap-only intervals
+		knots = []complexity.Knot{{M: 1, S: 0}} // bootstrap-only intervals
 	}
 
 	sizes := []int{1e4, 1e5, 1e6, 1e7}
@@ -142,6 +189,7 @@ func main() {
 	fmt.Fprintf(&sb, "Command: `%s -seed %d -boot %d`; %d cases (%d families × S ∈ %v × N/S ∈ %v), %.0f s on %d workers.\n\n",
 		cmd, *seed, *boot, len(all), len(jobs)/len(sizes), sizes, ratios, time.Since(start).Seconds(), *workers)
 	writeTables(&sb, all)
+	writeReach(&sb, all)
 	if *calibrate {
 		writeCalibration(&sb, all)
 	}
@@ -168,6 +216,10 @@ func main() {
 var candNames = []string{"band-h", "powerlaw-h", "lognormal2-h", "lognormal2", "lognormal-h", "lognormal", "ztnb-h", "ztnb-c"}
 
 var showCands bool
+
+// knots are the model-error knots of headroom's intervals (nil: the
+// calibrated defaults).
+var knots []complexity.Knot
 
 func names() []string {
 	var s []string
@@ -222,19 +274,9 @@ func runPopulation(seed uint64, fi, S int, ratios []float64, boot int) []caseRes
 			cr.res = append(cr.res, runModel(e, c, maxT))
 		}
 		if showCands {
-			ms := map[string]complexity.Model{}
-			for _, m := range complexity.Candidates(c, maxT) {
-				ms[m.Name()] = m
-			}
 			best, bestE := -1, math.Inf(1)
 			for _, n := range candNames {
-				m := ms[n]
-				r := runModel(estimator{n, func(complexity.Counts, float64) (complexity.Model, error) {
-					if m == nil {
-						return nil, fmt.Errorf("no fit")
-					}
-					return m, nil
-				}}, c, maxT)
+				r := runModel(estimator{n, n}, c, maxT)
 				cr.res = append(cr.res, r)
 				if e := relErr(r.pred[1], cr.truth[1]); !r.failed && e < bestE {
 					best, bestE = len(cr.res)-1, e
@@ -245,13 +287,13 @@ func runPopulation(seed uint64, fi, S int, ratios []float64, boot int) []caseRes
 			} else {
 				cr.res = append(cr.res, result{failed: true})
 			}
-			sr := runModel(estimator{"select", func(c complexity.Counts, maxT float64) (complexity.Model, error) {
-				m, _, err := complexity.Extrapolate(c, maxT)
-				return m, err
-			}}, c, maxT)
+			sr := runModel(estimator{"select", "select"}, c, maxT)
 			cr.res = append(cr.res, sr)
 		}
-		cr.res = append(cr.res, runHeadroom(c, boot, seed))
+		targets, elastic := reachTargets(a, float64(c.Reads()))
+		hr, reach := runHeadroom(c, boot, seed, targets)
+		cr.elastic = elastic
+		cr.res, cr.reach = append(cr.res, hr), reach
 		cr.secs = time.Since(t0).Seconds()
 		out = append(out, cr)
 	}
@@ -263,13 +305,13 @@ func runModel(e estimator, c complexity.Counts, maxT float64) result {
 	for k := range r.pred {
 		r.pred[k], r.lo[k], r.hi[k] = math.NaN(), math.NaN(), math.NaN()
 	}
-	m, err := e.fit(c, maxT)
-	if err != nil || m == nil {
+	m, admissible, err := complexity.Baseline(e.fit, c, maxT)
+	if err != nil {
 		r.failed = true
 		return r
 	}
 	r.method = m.Name()
-	if !complexity.Admissible(m, c, maxT) {
+	if !admissible {
 		r.failed = true
 	}
 	for k, mult := range multiples {
@@ -282,14 +324,18 @@ func runModel(e estimator, c complexity.Counts, maxT float64) result {
 	return r
 }
 
-func runHeadroom(c complexity.Counts, boot int, seed uint64) result {
+func runHeadroom(c complexity.Counts, boot int, seed uint64, targets []complexity.Target) (result, []complexity.Reached) {
 	var depths []float64
 	for _, m := range multiples {
 		depths = append(depths, m*float64(c.Reads()))
 	}
-	rep := complexity.Analyze(c, complexity.Options{Depths: depths, Bootstrap: boot, Seed: seed, Threads: 1, Gates: complexity.NoGates()})
+	rep := complexity.Analyze(c, complexity.Options{Depths: depths, Bootstrap: boot, Seed: seed, Threads: 1,
+		Gates: complexity.NoGates(), ModelError: knots, Reach: targets})
 	var r result
 	r.method = rep.Method
+	if rep.TotalMethod != "" {
+		r.method += "; total=" + rep.TotalMethod
+	}
 	for k := range multiples {
 		if k >= len(rep.Predictions) {
 			r.failed = true
@@ -301,7 +347,7 @@ func runHeadroom(c complexity.Counts, boot int, seed uint64) result {
 			r.failed = true
 		}
 	}
-	return r
+	return r, rep.Reach
 }
 
 func relErr(pred, truth float64) float64 { return math.Abs(pred/truth - 1) }
@@ -482,7 +528,7 @@ func writeCalibration(w io.Writer, all []caseResult) {
 	const z = 1.959963984540054
 	hi := len(all[0].res) - 1
 	fmt.Fprintln(w)
-	fmt.Fprintln(w, "### Calibration of the interval model-error term (complexity.ModelErrorKnots)")
+	fmt.Fprintln(w, "### Calibration of the interval model-error term (complexity.Options.ModelError; the defaults in complexity/interval.go)")
 	fmt.Fprintln(w)
 	fmt.Fprint(w, "knots: {1, 0}")
 	for k, m := range multiples {
@@ -520,4 +566,55 @@ func writeCalibration(w io.Writer, all []caseResult) {
 		fmt.Fprintf(w, ", {%g, %.3f}", m, b)
 	}
 	fmt.Fprintln(w)
+}
+
+// writeReach writes the accuracy of headroom's reach answers: for each
+// target kind and true depth, the median and 90th percentile of the
+// |relative error| of the depth (a target not reached counts as an
+// infinite error), the coverage of the interval and how many were not
+// reached.
+func writeReach(w io.Writer, all []caseResult) {
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "### Reach: |relative error| of the depth at which a target is reached, median / 90th percentile; interval coverage; not reached")
+	fmt.Fprintln(w)
+	fmt.Fprintf(w, "| target | true depth | median | 90th pct | coverage | not reached | median, elasticity ≥ %g (cases) |\n", wellPosed)
+	fmt.Fprintln(w, "|---|---|---|---|---|---|---|")
+	for ki, k := range reachKinds {
+		for mi, m := range reachMultiples {
+			var errs, posed []float64
+			covered, missed := 0, 0
+			for _, cr := range all {
+				q := cr.reach[ki*len(reachMultiples)+mi]
+				T := m * float64(cr.n)
+				e := math.Inf(1)
+				if !math.IsNaN(q.Reads) {
+					e = relErr(q.Reads, T)
+				} else {
+					missed++
+				}
+				errs = append(errs, e)
+				if cr.elastic[mi] >= wellPosed {
+					posed = append(posed, e)
+				}
+				if q.Lo <= T && T <= q.Hi {
+					covered++
+				}
+			}
+			fmt.Fprintf(w, "| %v | %g× | %s | %s | %s | %d of %d | %s (%d) |\n", k, m, pct(quantileInf(errs, 0.5)), pct(quantileInf(errs, 0.9)),
+				pct(float64(covered)/float64(len(all))), missed, len(all), pct(quantileInf(posed, 0.5)), len(posed))
+		}
+	}
+}
+
+// wellPosed is the elasticity from which a depth is well determined by
+// the curve: 10% more reads add at least 1% distinct units there.
+const wellPosed = 0.1
+
+// quantileInf is quantile where infinite values (failures) stay infinite.
+func quantileInf(v []float64, p float64) float64 {
+	q := quantile(v, p)
+	if math.IsNaN(q) && len(v) > 0 {
+		return math.Inf(1)
+	}
+	return q
 }

@@ -152,7 +152,7 @@ func runPool(seed, i uint64) poolResult {
 			panic(err) // simulated counts are always valid
 		}
 		rep := complexity.Analyze(c, complexity.Options{})
-		est = append(est, complexity.Curve{Counts: c, Model: rep.Model})
+		est = append(est, rep.Curve)
 		tm := bins(a, 400)
 		truth = append(truth, complexity.Curve{Counts: c, Model: tm})
 		exact := trueModel{p: a, w: ones(len(a))}
