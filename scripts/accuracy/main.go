@@ -13,6 +13,12 @@
 // headroom's intervals and the failures (NaN, error or an inadmissible
 // curve) per estimator, overall and by family, as markdown.
 //
+// It also measures headroom's reach answers (complexity.Options.Reach):
+// for each target kind (distinct, dup, coverage, yield) the target is set
+// to its true value at T = 3N, 10N, 30N (reachTargets), so the true
+// answer is T; the table gives the median and 90th percentile |relative
+// error| of the depth and the coverage of its interval.
+//
 // The grid: 14 families × library sizes S ∈ {1e4, 1e5, 1e6, 1e7} × depth
 // N/S ∈ {0.1, 0.3, 1, 3} (a shallow QC pass sees anywhere from a tenth to a
 // few times the library), one draw each; -quick uses S ≤ 1e6 and N/S ∈
