@@ -151,7 +151,7 @@ func (f *File) superblock23() error {
 func (f *File) setSizes(off, length int) error {
 	ok := func(n int) bool { return n == 2 || n == 4 || n == 8 }
 	if !ok(off) || !ok(length) {
-		return errf("", ErrCorrupt, "superblock gives sizes of offsets %d and lengths %d (2, 4 or 8 expected)", off, length)
+		return errf("", ErrCorrupt, "superblock gives sizes of offsets %d and lengths %d (2, 4 or 8 expected); the file is damaged", off, length)
 	}
 	f.offSz, f.lenSz = off, length
 	return nil
