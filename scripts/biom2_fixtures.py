@@ -118,6 +118,8 @@ def main():
     write_all("one_sample", table(3, 30, 1), compress=True)
     write_all("many_samples", table(4, 40, 120, density=0.2, empty=(7, 50)), compress=True)
     write_all("no_metadata", table(5, 8, 3, taxonomy=False), compress=False)
+    # No non-zero cell: zero-length data and indices datasets.
+    write_all("all_zero", Table(np.zeros((3, 2)), ["ASV1", "ASV2", "ASV3"], ["pond-A", "pond-B"]), compress=True)
 
     # Written with h5py: old- and new-style groups, layouts, filters, types.
     t = table(6, 50, 9, empty=(0, 8))
