@@ -625,10 +625,52 @@ for name, args, want, what in [
     ("flag_stdin_twice", "reads - -", "", "standard input named twice"),
     ("flag_taxa_two", "taxa @taxa_empty.tsv @taxa_empty.tsv", "", "two tables"),
     ("flag_taxa_layout", "taxa --samples-as-rows --taxa-as-rows @taxa_empty.tsv", "", "contradicting layouts"),
-    ("flag_taxa_coverage", "taxa --coverage-target 1.5 @taxa_empty.tsv", "coverage-target", "coverage target above 1"),
+    ("flag_taxa_coverage", "taxa --reach coverage:1.5 @taxa_empty.tsv", "coverage must be between 0 and 1", "coverage target above 1"),
     ("flag_version_args", "version extra", "no arguments", "version with an argument"),
 ]:
     case(name, args, 2, want, what)
+
+
+
+# ---------------------------------------------------------------- decisions
+# --reach targets, --plan/--budget/--pool (DESIGN.md "Decisions") and the
+# checks of outputs made before any input is read.
+
+put("pool_unknown.tsv", "sample\tshare\nA\t1\nZ\t2\n")
+put("pool_missing.tsv", "sample\tshare\n")
+put("pool_share_neg.tsv", "sample\tshare\nA\t-1\n")
+put("pool_share_word.tsv", "sample\tshare\nA\thalf\n")
+put("pool_no_header.tsv", "A\t1\n")
+for name, args, exit_, want, what in [
+    ("reach_unknown", "counts --reach speed:3 @counts_a.tsv", 2, "unknown kind", "a target kind that does not exist"),
+    ("reach_no_colon", "counts --reach 0.3 @counts_a.tsv", 2, "KIND:VALUE", "a target without its kind"),
+    ("reach_dup_range", "counts --reach dup:1.2 @counts_a.tsv", 2, "between 0 and 1", "a duplicate fraction above 1"),
+    ("reach_coverage_zero", "counts --reach coverage:0 @counts_a.tsv", 2, "between 0 and 1", "coverage 0"),
+    ("reach_distinct_neg", "counts --reach distinct:-5 @counts_a.tsv", 2, "distinct", "a negative distinct target"),
+    ("reach_repeat", "counts --reach dup:0.3,dup:0.3 @counts_a.tsv", 2, "given twice", "one target twice"),
+    ("plan_no_budget", "counts --plan @never_plan.tsv @counts_a.tsv", 2, "--plan needs --budget", "a plan without a budget"),
+    ("budget_no_plan", "counts --budget 10M @counts_a.tsv", 2, "--budget is for --plan", "a budget without a plan"),
+    ("budget_zero", "counts --plan @never_plan.tsv --budget 0 @counts_a.tsv", 2, "--budget", "a budget of 0 reads"),
+    ("budget_negative", "counts --plan @never_plan.tsv --budget -5 @counts_a.tsv", 2, "--budget", "a negative budget"),
+    ("plan_goal", "counts --plan @never_plan.tsv --budget 1M --plan-goal fastest @counts_a.tsv", 2, "most or reach", "an unknown plan goal"),
+    ("pool_unknown", "counts --plan @never_plan.tsv --budget 1M --pool @pool_unknown.tsv @counts_a.tsv", 1,
+     "pool_unknown.tsv:3: sample \"Z\" is not in this run", "a pool share for a sample the run does not have"),
+    ("pool_missing", "counts --plan @never_plan.tsv --budget 1M --pool @pool_missing.tsv @counts_a.tsv", 1,
+     "pool_missing.tsv: no share for", "a pool table without the run's sample"),
+    ("pool_share_neg", "counts --plan @never_plan.tsv --budget 1M --pool @pool_share_neg.tsv @counts_a.tsv", 1,
+     "pool_share_neg.tsv:2: column 2", "a negative pool share"),
+    ("pool_share_word", "counts --plan @never_plan.tsv --budget 1M --pool @pool_share_word.tsv @counts_a.tsv", 1,
+     "pool_share_word.tsv:2: column 2", "a pool share that is a word"),
+    ("pool_no_header", "counts --plan @never_plan.tsv --budget 1M --pool @pool_no_header.tsv @counts_a.tsv", 1,
+     "pool_no_header.tsv:1: the pool table needs a header", "a pool table without its header"),
+    ("pool_no_plan", "counts --pool @pool_unknown.tsv @counts_a.tsv", 2, "--pool is for --plan", "pool shares without a plan"),
+    ("out_two_stdout", "counts --curve - --save-counts - @counts_a.tsv", 2, "at most one output may be '-'", "two outputs on standard output"),
+    ("out_missing_dir", "counts -o /nonexistent-headroom-dir/out.tsv @counts_a.tsv", 2, "does not exist",
+     "an output in a folder that does not exist (refused before reading)"),
+    ("out_twice", "counts --plot a.png --plot b.svg @counts_a.tsv", 2, "--plot given twice", "one output flag given twice"),
+    ("out_plan_is_input", "counts --plan @counts_a.tsv --budget 1M @counts_a.tsv", 2, "also an input", "the plan would replace the input"),
+]:
+    case(name, args, exit_, want, what)
 
 
 def main():
