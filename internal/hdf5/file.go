@@ -60,6 +60,7 @@ type File struct {
 	offSz  int // size of offsets (addresses), bytes
 	lenSz  int // size of lengths, bytes
 	root   uint64
+	sbVer  byte              // superblock version
 	gheaps map[uint64][]byte // global heap collections read (few)
 	gorder []uint64
 	// noChecksums skips checksum verification (fuzzing reaches deeper).
@@ -78,6 +79,7 @@ func open(r io.ReaderAt, size int64, checksums bool) (*File, error) {
 	if !bytes.Equal(head[:8], Signature) {
 		return nil, errf("", ErrUnsupported, "no HDF5 signature at the start of the file (a user block is not supported)")
 	}
+	f.sbVer = head[8]
 	switch v := head[8]; v {
 	case 0, 1:
 		err = f.superblock01(v)
