@@ -11,8 +11,9 @@ import (
 	"headroom/internal/hdf5"
 )
 
-// biomBatch is how many elements of a BIOM 2.1 dataset are read at once.
-const biomBatch = 1 << 16
+// biomBatch is how many elements of a BIOM 2.1 dataset are read at once
+// (a variable so that a test can make every batch boundary occur).
+var biomBatch = 1 << 16
 
 // readBIOM2 reads a BIOM 2.1 table (BIOM format specification, version
 // 2.1) from the HDF5 file r of size bytes. It streams sample/matrix, the
@@ -134,11 +135,11 @@ func (b *biom2) ids(path, what string) ([]string, error) {
 	if n == 0 {
 		return []string{}, nil
 	}
-	ids := make([]string, 0, min(n, biomBatch))
+	ids := make([]string, 0, min(n, uint64(biomBatch)))
 	seen := map[string]int{}
 	buf := make([]string, biomBatch)
-	for start := uint64(0); start < n; start += biomBatch {
-		part := buf[:min(biomBatch, n-start)]
+	for start := uint64(0); start < n; start += uint64(biomBatch) {
+		part := buf[:min(uint64(biomBatch), n-start)]
 		if err := d.Strings(start, part); err != nil {
 			return nil, err
 		}

@@ -131,3 +131,15 @@ func TestBIOM2Bad(t *testing.T) {
 		}
 	}
 }
+
+// Reading in batches of 3 elements (so that IDs, indptr and a sample's
+// entries all span several batches) gives the same table.
+func TestBIOM2SmallBatches(t *testing.T) {
+	path := filepath.Join(biom2Dir, "many_samples.biom")
+	want := readFile(t, path, Options{})
+	defer func(n int) { biomBatch = n }(biomBatch)
+	biomBatch = 3
+	if d := sameTable(readFile(t, path, Options{}), want); d != "" {
+		t.Errorf("batches of 3: %s", d)
+	}
+}

@@ -99,6 +99,8 @@ def write_layout(f, t, ids_fixed=False, data_dtype="<f8", idx_dtype="<i4", skip=
             if "%s/matrix/%s" % (axis, name) in skip:
                 continue
             kw = dict(dskw)
+            if "dcpl" in kw:
+                kw["dcpl"] = kw["dcpl"]()  # a fresh property list per dataset
             if kw.get("chunks"):
                 if len(values) == 0:
                     kw.pop("chunks")
@@ -118,6 +120,8 @@ def main():
     write_all("one_sample", table(3, 30, 1), compress=True)
     write_all("many_samples", table(4, 40, 120, density=0.2, empty=(7, 50)), compress=True)
     write_all("no_metadata", table(5, 8, 3, taxonomy=False), compress=False)
+    # No non-zero cell: zero-length data and indices datasets.
+    write_all("all_zero", Table(np.zeros((3, 2)), ["ASV1", "ASV2", "ASV3"], ["pond-A", "pond-B"]), compress=True)
 
     # Written with h5py: old- and new-style groups, layouts, filters, types.
     t = table(6, 50, 9, empty=(0, 8))
@@ -135,6 +139,21 @@ def main():
     write_h5("h5-int-counts", t, data_dtype="<u4", idx_dtype="<i8")
     write_h5("h5-float32", t, data_dtype="<f4", chunks=(9,), compression="gzip")
     write_h5("h5-fixed-ids", t, ids_fixed=True, libver="latest")
+    write_h5("h5-v108", t, libver=("v108", "v108"), chunks=(7,), compression="gzip")  # superblock 2
+
+    def compact():
+        p = h5py.h5p.create(h5py.h5p.DATASET_CREATE)
+        p.set_layout(h5py.h5d.COMPACT)
+        return p
+
+    def early():
+        p = h5py.h5p.create(h5py.h5p.DATASET_CREATE)
+        p.set_alloc_time(h5py.h5d.ALLOC_TIME_EARLY)
+        return p
+
+    write_h5("h5-compact", t, libver="latest", dcpl=compact)
+    # Chunked, unfiltered, allocated early, fixed size: the implicit index.
+    write_h5("h5-latest-implicit", t, libver="latest", chunks=(6,), dcpl=early)
 
     # Malformed, for the bad-input corpus.
     bad = os.path.join(OUT, "bad")

@@ -60,6 +60,7 @@ type File struct {
 	offSz  int // size of offsets (addresses), bytes
 	lenSz  int // size of lengths, bytes
 	root   uint64
+	sbVer  byte              // superblock version
 	gheaps map[uint64][]byte // global heap collections read (few)
 	gorder []uint64
 	// noChecksums skips checksum verification (fuzzing reaches deeper).
@@ -78,6 +79,7 @@ func open(r io.ReaderAt, size int64, checksums bool) (*File, error) {
 	if !bytes.Equal(head[:8], Signature) {
 		return nil, errf("", ErrUnsupported, "no HDF5 signature at the start of the file (a user block is not supported)")
 	}
+	f.sbVer = head[8]
 	switch v := head[8]; v {
 	case 0, 1:
 		err = f.superblock01(v)
@@ -151,7 +153,7 @@ func (f *File) superblock23() error {
 func (f *File) setSizes(off, length int) error {
 	ok := func(n int) bool { return n == 2 || n == 4 || n == 8 }
 	if !ok(off) || !ok(length) {
-		return errf("", ErrCorrupt, "superblock gives sizes of offsets %d and lengths %d (2, 4 or 8 expected)", off, length)
+		return errf("", ErrCorrupt, "superblock gives sizes of offsets %d and lengths %d (2, 4 or 8 expected); the file is damaged", off, length)
 	}
 	f.offSz, f.lenSz = off, length
 	return nil

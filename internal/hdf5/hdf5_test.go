@@ -71,8 +71,14 @@ func TestFixtureStructures(t *testing.T) {
 		{"h5-latest-paged.biom", false, 2, 3, nil, true},
 		{"small.biom", true, 1, 0, nil, false},
 		{"small_gzip.biom", true, 2, 0, []uint16{1}, false},
+		{"h5-compact.biom", false, 0, 0, nil, false},
+		{"h5-latest-implicit.biom", false, 2, 2, nil, false},
+		{"h5-v108.biom", false, 2, 0, []uint16{1}, false}, // layout 3: the fixed array came with 1.10
 	} {
 		f := openFixture(t, c.file)
+		if want := map[bool]byte{true: 0, false: 3}[c.symbols]; c.file == "h5-v108.biom" && f.sbVer != 2 || c.file != "h5-v108.biom" && f.sbVer != want {
+			t.Errorf("%s: superblock version %d", c.file, f.sbVer)
+		}
 		root, err := f.Root()
 		if err != nil {
 			t.Fatal(err)
