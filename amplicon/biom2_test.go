@@ -126,7 +126,7 @@ func TestBIOM2Bad(t *testing.T) {
 		}
 		_, err := Read(bytes.NewReader(data), Options{})
 		var pe *ParseError
-		if !errors.As(err, &pe) || !errors.Is(err, c.kind) || !strings.Contains(pe.Msg, c.want) || strings.ContainsAny(pe.Msg, "\r\n") {
+		if !errors.As(err, &pe) || !errors.Is(err, c.kind) || !strings.Contains(pe.Err.Error(), c.want) || strings.ContainsAny(pe.Err.Error(), "\r\n") {
 			t.Errorf("%s: err = %v, want %v containing %q", c.file, err, c.kind, c.want)
 		}
 	}

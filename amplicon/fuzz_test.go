@@ -38,8 +38,8 @@ func fuzzRead(t *testing.T, data []byte) {
 			if !errors.As(err, &pe) {
 				t.Fatalf("error is not a *ParseError: %v", err)
 			}
-			if strings.ContainsAny(pe.Msg, "\n\r") {
-				t.Fatalf("multi-line message %q", pe.Msg)
+			if strings.ContainsAny(pe.Err.Error(), "\n\r") {
+				t.Fatalf("multi-line message %q", pe.Err.Error())
 			}
 			continue
 		}
@@ -99,8 +99,8 @@ func FuzzReadBIOM2(f *testing.F) {
 			if !errors.As(err, &pe) {
 				t.Fatalf("error is not a *ParseError: %v", err)
 			}
-			if strings.ContainsAny(pe.Msg, "\n\r") {
-				t.Fatalf("multi-line message %q", pe.Msg)
+			if strings.ContainsAny(pe.Err.Error(), "\n\r") {
+				t.Fatalf("multi-line message %q", pe.Err.Error())
 			}
 			return
 		}

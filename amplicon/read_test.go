@@ -193,9 +193,9 @@ func TestBadInput(t *testing.T) {
 			t.Errorf("%s: err = %v, want a *ParseError", c.name, err)
 			continue
 		}
-		if !errors.Is(err, c.kind) || pe.Line != c.line || (c.col != 0 && pe.Column != c.col) || !strings.Contains(pe.Msg, c.msg) {
+		if !errors.Is(err, c.kind) || pe.Line != c.line || (c.col != 0 && pe.Column != c.col) || !strings.Contains(pe.Err.Error(), c.msg) {
 			t.Errorf("%s: got %v (line %d col %d kind %v), want line %d col %d kind %v and %q",
-				c.name, err, pe.Line, pe.Column, pe.Kind, c.line, c.col, c.kind, c.msg)
+				c.name, err, pe.Line, pe.Column, pe.Err, c.line, c.col, c.kind, c.msg)
 		}
 		if strings.Contains(pe.Error(), "\n") {
 			t.Errorf("%s: message spans lines: %q", c.name, pe.Error())

@@ -31,7 +31,7 @@ func TestWrongTool(t *testing.T) {
 	} {
 		_, err := Read(strings.NewReader(c.body), Options{})
 		var pe *ParseError
-		if !errors.As(err, &pe) || !errors.Is(err, ErrWrongFile) || !strings.Contains(pe.Msg, c.want) {
+		if !errors.As(err, &pe) || !errors.Is(err, ErrWrongFile) || !strings.Contains(pe.Err.Error(), c.want) {
 			t.Errorf("%s: err = %v, want ErrWrongFile %q", c.name, err, c.want)
 		}
 	}
