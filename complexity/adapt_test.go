@@ -14,13 +14,13 @@ func TestIntervalFitFormula(t *testing.T) {
 	c, _ := NewCounts([]Class{{1, 600}, {2, 200}, {3, 100}, {10, 100}})
 	n, d := float64(c.Reads()), float64(c.Distinct())
 	const z = 1.959963984540054
-	for i, k := range BacktestKnots[1:] {
+	for i, k := range defaultFitKnots[1:] {
 		T := k.M * n
 		point := d + 0.3*(T-n)
 		reps := []float64{point, point, point}
-		sm := ModelErrorKnots[i+1].S
+		sm := defaultKnots[i+1].S
 		for _, b := range []float64{0, 0.05, -0.2, math.NaN()} {
-			lo, hi := intervalFit(point, reps, 0.95, c, T, b)
+			lo, hi := intervalFit(point, reps, 0.95, c, T, defaultKnots, fitErr(defaultFitKnots, k.M, b))
 			ab := math.Abs(b)
 			if math.IsNaN(b) {
 				ab = backtestMissing
@@ -32,28 +32,26 @@ func TestIntervalFitFormula(t *testing.T) {
 				t.Errorf("m=%g b=%g: [%g, %g], want [%g, %g]", k.M, b, lo, hi, wantLo, wantHi)
 			}
 		}
-		lo0, hi0 := intervalFit(point, reps, 0.95, c, T, 0)
-		lo1, hi1 := interval(point, reps, 0.95, c, T)
+		lo0, hi0 := intervalFit(point, reps, 0.95, c, T, defaultKnots, fitErr(defaultFitKnots, k.M, 0))
+		lo1, hi1 := interval(point, reps, 0.95, c, T, defaultKnots)
 		if lo0 != lo1 || hi0 != hi1 {
 			t.Errorf("m=%g: b = 0 gives [%g, %g], interval [%g, %g]", k.M, lo0, hi0, lo1, hi1)
 		}
 	}
 }
 
-// TestKnotAt: piecewise linear in log m between knots, 0 at m ≤ 1 and for
-// no knots, constant beyond the last; checked at the geometric midpoint of
-// two knots, where the value is their arithmetic mean.
-func TestKnotAt(t *testing.T) {
+// TestFitErr: s_fit = κ(m)·|b| with κ interpolated like the model-error
+// knots (piecewise linear in log m: at the geometric midpoint of two knots
+// the arithmetic mean), 0 at m ≤ 1, the last weight beyond the last knot.
+func TestFitErr(t *testing.T) {
 	k := []Knot{{1, 0}, {10, 2}, {100, 4}}
-	cases := []struct{ m, want float64 }{
-		{0.5, 0}, {1, 0}, {math.Sqrt(10), 1}, {10, 2}, {math.Sqrt(1000), 3}, {100, 4}, {1e6, 4}, {math.Inf(1), 4},
+	cases := []struct{ m, b, want float64 }{
+		{0.5, 0.1, 0}, {1, 0.1, 0}, {math.Sqrt(10), 0.1, 0.1}, {10, -0.1, 0.2}, {math.Sqrt(1000), 0.2, 0.6},
+		{1e6, 0.1, 0.4}, {math.Inf(1), 0.1, 0.4}, {10, math.NaN(), 2 * backtestMissing},
 	}
 	for _, tc := range cases {
-		if got := knotAt(k, tc.m); math.Abs(got-tc.want) > 1e-12 {
-			t.Errorf("knotAt(%g) = %g, want %g", tc.m, got, tc.want)
+		if got := fitErr(k, tc.m, tc.b); math.Abs(got-tc.want) > 1e-12 {
+			t.Errorf("fitErr(%g, %g) = %g, want %g", tc.m, tc.b, got, tc.want)
 		}
-	}
-	if knotAt(nil, 50) != 0 {
-		t.Error("no knots must give 0")
 	}
 }

@@ -171,29 +171,33 @@ func TestInverse(t *testing.T) {
 	}
 	cv := Curve{Counts: c, Model: m}
 	want := cv.Distinct(7 * n)
-	got := cv.ReadsForDistinct(want, 1000*n)
-	if !got.Reachable || math.Abs(got.Reads-7*n) > 1+1e-6*n {
-		t.Errorf("ReadsForDistinct(%v) = %+v, want %v", want, got, 7*n)
+	if got := cv.ReadsFor(Target{TargetDistinct, want}, 1000*n); math.Abs(got-7*n) > 1+1e-6*n {
+		t.Errorf("ReadsFor distinct %v = %v, want %v", want, got, 7*n)
 	}
 	if lim, ok := m.Limit(); ok {
-		if r := cv.ReadsForDistinct(lim*1.01, 1000*n); r.Reachable {
-			t.Errorf("beyond the limit %v: %+v, want unreachable", lim, r)
+		if r := cv.ReadsFor(Target{TargetDistinct, lim * 1.01}, 1000*n); !math.IsNaN(r) {
+			t.Errorf("beyond the limit %v: %v, want unreachable", lim, r)
 		}
 	}
 	d := cv.DupFraction(3 * n)
-	if r := cv.ReadsForDupFraction(d, 1000*n); !r.Reachable || math.Abs(r.Reads-3*n) > 1+1e-6*n {
-		t.Errorf("ReadsForDupFraction(%v) = %+v, want %v", d, r, 3*n)
+	if r := cv.ReadsFor(Target{TargetDup, d}, 1000*n); math.Abs(r-3*n) > 1+1e-6*n {
+		t.Errorf("ReadsFor dup %v = %v, want %v", d, r, 3*n)
 	}
-	cov := cv.Coverage(5 * n)
-	if r := cv.ReadsForCoverage(cov, 1000*n); !r.Reachable || math.Abs(r.Reads-5*n) > 1+1e-4*n {
-		t.Errorf("ReadsForCoverage(%v) = %+v, want %v", cov, r, 5*n)
+	rare := Curve{Counts: c} // no model: the Chao–Jost coverage
+	cov := rare.Coverage(5 * n)
+	if r := rare.ReadsFor(Target{TargetCoverage, cov}, 1000*n); math.Abs(r-5*n) > 1+1e-4*n {
+		t.Errorf("ReadsFor coverage %v = %v, want %v", cov, r, 5*n)
+	}
+	cov = 1 - cv.MarginalYield(5*n) // with a model: 1 − the slope
+	if r := cv.ReadsFor(Target{TargetCoverage, cov}, 1000*n); math.Abs(r-5*n)/n > 1e-3 {
+		t.Errorf("ReadsFor coverage %v (model) = %v, want %v", cov, r, 5*n)
 	}
 	y := cv.MarginalYield(4 * n)
-	if r := cv.ReadsForMarginalYield(y, 1000*n); !r.Reachable || math.Abs(r.Reads-4*n)/n > 1e-3 {
-		t.Errorf("ReadsForMarginalYield(%v) = %+v, want %v", y, r, 4*n)
+	if r := cv.ReadsFor(Target{TargetYield, y}, 1000*n); math.Abs(r-4*n)/n > 1e-3 {
+		t.Errorf("ReadsFor yield %v = %v, want %v", y, r, 4*n)
 	}
-	if r := cv.ReadsForCoverage(1.5, 1000*n); r.Reachable {
-		t.Errorf("coverage 1.5 reachable: %+v", r)
+	if r := cv.ReadsFor(Target{TargetCoverage, 1.5}, 1000*n); !math.IsNaN(r) {
+		t.Errorf("coverage 1.5 reachable: %v", r)
 	}
 }
 

@@ -81,9 +81,9 @@ func FromMap(m map[int64]int64) (Counts, error) {
 	return NewCounts(cs)
 }
 
-// FromUnitCounts builds a table from per-unit read counts (one entry per
+// fromUnitCounts builds a table from per-unit read counts (one entry per
 // unit; zeros are ignored).
-func FromUnitCounts(perUnit []int64) (Counts, error) {
+func fromUnitCounts(perUnit []int64) (Counts, error) {
 	m := make(map[int64]int64)
 	for _, x := range perUnit {
 		if x < 0 {
@@ -123,9 +123,11 @@ func (c Counts) MaxTimes() int64 {
 	return c.classes[len(c.classes)-1].Times
 }
 
-// Add returns the class-wise sum of two tables (the frequency counts of the
-// union of two disjoint sets of units, as when shards are merged).
-func Add(a, b Counts) (Counts, error) {
+// Add returns the class-wise sum of c and b (the frequency counts of the
+// union of two disjoint sets of units, as when shards are merged), or
+// ErrOverflow when the reads would overflow.
+func (c Counts) Add(b Counts) (Counts, error) {
+	a := c
 	m := make(map[int64]int64, len(a.classes)+len(b.classes))
 	for _, c := range a.classes {
 		m[c.Times] += c.Units

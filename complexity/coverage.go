@@ -2,7 +2,7 @@ package complexity
 
 import "math"
 
-// SampleCoverage returns the Chao–Jost estimate of sample coverage: the
+// sampleCoverage returns the Chao–Jost estimate of sample coverage: the
 // share of the library's reads (the population's total abundance) that
 // belongs to units already observed,
 //
@@ -18,14 +18,14 @@ import "math"
 //	Chao, A. & Jost, L. (2012). Coverage-based rarefaction and
 //	extrapolation: standardizing samples by completeness rather than size.
 //	Ecology 93:2533-2547.
-func SampleCoverage(c Counts) float64 {
+func sampleCoverage(c Counts) float64 {
 	if c.Reads() == 0 {
 		return math.NaN()
 	}
-	return 1 - MarginalYield(c)
+	return 1 - marginalYield(c)
 }
 
-// MarginalYield returns the estimated probability that the next read is
+// marginalYield returns the estimated probability that the next read is
 // of a unit not yet observed, the coverage deficit of Chao & Jost (2012):
 //
 //	1 - C_n = (f1/n) [ (n-1) f1 / ((n-1) f1 + 2 f2) ]
@@ -34,13 +34,13 @@ func SampleCoverage(c Counts) float64 {
 // as 1 - SampleCoverage so it keeps its relative accuracy when small.
 // Chao & Jost note that 1 - C_m is the slope of the expected distinct
 // curve at m (for t < n exactly: E[S_{m+1}] - E[S_m] = 1 - C_m, with C_m of
-// CoverageAt), so this is the expected share of the next reads that are new
+// coverageAt), so this is the expected share of the next reads that are new
 // units. It returns 0 when f1 = 0 and NaN for an empty table.
 //
 // References:
 //
 //	Chao, A. & Jost, L. (2012). Ecology 93:2533-2547.
-func MarginalYield(c Counts) float64 {
+func marginalYield(c Counts) float64 {
 	n := float64(c.Reads())
 	if n == 0 {
 		return math.NaN()
@@ -66,7 +66,7 @@ func coverageRatio(c Counts) float64 {
 	return a / (a + 2)
 }
 
-// CoverageAt returns the expected sample coverage after t reads of the
+// coverageAt returns the expected sample coverage after t reads of the
 // same library (Chao & Jost 2012), with n the observed
 // reads and f_j the units seen j times:
 //
@@ -76,9 +76,9 @@ func coverageRatio(c Counts) float64 {
 //
 // (f2 = 0: the bracket of SampleCoverage). The rarefied form is summed as
 // sum_j (j f_j/n)(1 - ratio_j) with 1 - ratio from expm1 of a log-gamma
-// ratio (see Rarefy), so small coverages keep their relative accuracy; the
+// ratio (see rarefy), so small coverages keep their relative accuracy; the
 // power is exp((t-n+1) log(bracket)). For real t in [0, n-1] the binomial
-// ratio is the gamma-function continuation used by Rarefy; for t in
+// ratio is the gamma-function continuation used by rarefy; for t in
 // (n-1, n) C_t is interpolated linearly between C_{n-1} = 1 - f1/n and
 // C_n, since the rarefied formula stops at t = n-1. C_t is continuous at
 // t = n and non-decreasing in t.
@@ -91,14 +91,14 @@ func coverageRatio(c Counts) float64 {
 //	Chao, A. & Jost, L. (2012). Coverage-based rarefaction and
 //	extrapolation: standardizing samples by completeness rather than size.
 //	Ecology 93:2533-2547.
-func CoverageAt(c Counts, t float64) float64 {
+func coverageAt(c Counts, t float64) float64 {
 	n := float64(c.Reads())
 	if n == 0 || !(t >= 0) {
 		return math.NaN()
 	}
 	switch {
 	case t == n:
-		return SampleCoverage(c)
+		return sampleCoverage(c)
 	case t > n:
 		f1 := float64(c.Units(1))
 		if f1 == 0 {
@@ -111,12 +111,12 @@ func CoverageAt(c Counts, t float64) float64 {
 		return 1 - f1/n*math.Exp((t-n+1)*math.Log(r))
 	case t > n-1:
 		lo := coverageRarefied(c, n-1)
-		return lo + (t-(n-1))*(SampleCoverage(c)-lo)
+		return lo + (t-(n-1))*(sampleCoverage(c)-lo)
 	}
 	return coverageRarefied(c, t)
 }
 
-// coverageRarefied is the t < n branch of CoverageAt for t in [0, n-1]:
+// coverageRarefied is the t < n branch of coverageAt for t in [0, n-1]:
 // sum_j (j f_j / n)(1 - C(n-j,t)/C(n-1,t)), the ratio being the
 // probability that a unit with j-1 of n-1 reads is missed (hgLogAbsent).
 func coverageRarefied(c Counts, t float64) float64 {

@@ -28,28 +28,28 @@ func TestCoverageHand(t *testing.T) {
 	// At t = n-1 = 8 only singletons can be missed: C_8 = 1 - f1/n = 2/3.
 	c := numCounts(t, map[int64]int64{1: 3, 2: 1, 4: 1})
 	checks := []numCheck{
-		{"SampleCoverage", SampleCoverage(c), 9.0 / 13},
-		{"MarginalYield", MarginalYield(c), 4.0 / 13},
-		{"CoverageAt(9)", CoverageAt(c, 9), 9.0 / 13},
-		{"CoverageAt(2)", CoverageAt(c, 2), 43.0 / 126},
-		{"CoverageAt(8)", CoverageAt(c, 8), 2.0 / 3},
-		{"CoverageAt(12)", CoverageAt(c, 12), 64947.0 / 85683},
-		{"CoverageAt(8.5)", CoverageAt(c, 8.5), (2.0/3 + 9.0/13) / 2}, // linear on (n-1, n)
-		{"CoverageAt(0)", CoverageAt(c, 0), 0},
+		{"SampleCoverage", sampleCoverage(c), 9.0 / 13},
+		{"MarginalYield", marginalYield(c), 4.0 / 13},
+		{"coverageAt(9)", coverageAt(c, 9), 9.0 / 13},
+		{"coverageAt(2)", coverageAt(c, 2), 43.0 / 126},
+		{"coverageAt(8)", coverageAt(c, 8), 2.0 / 3},
+		{"coverageAt(12)", coverageAt(c, 12), 64947.0 / 85683},
+		{"coverageAt(8.5)", coverageAt(c, 8.5), (2.0/3 + 9.0/13) / 2}, // linear on (n-1, n)
+		{"coverageAt(0)", coverageAt(c, 0), 0},
 	}
 	// Table {1:2, 3:1}: n = 5, f1 = 2, f2 = 0, so the f2 = 0 bracket
 	//   (n-1)(f1-1) / ((n-1)(f1-1) + 2) = 4/6 = 2/3 applies:
 	//   C_5 = 1 - (2/5)(2/3) = 11/15; C_7 = 1 - (2/5)(2/3)^3 = 1 - 16/135 = 119/135.
 	d := numCounts(t, map[int64]int64{1: 2, 3: 1})
 	checks = append(checks,
-		numCheck{"f2=0 SampleCoverage", SampleCoverage(d), 11.0 / 15},
-		numCheck{"f2=0 CoverageAt(7)", CoverageAt(d, 7), 119.0 / 135},
+		numCheck{"f2=0 SampleCoverage", sampleCoverage(d), 11.0 / 15},
+		numCheck{"f2=0 coverageAt(7)", coverageAt(d, 7), 119.0 / 135},
 	)
 	// No singletons: coverage 1, yield 0 (the formula with f1 = 0).
 	e := numCounts(t, map[int64]int64{2: 4, 5: 1})
 	checks = append(checks,
-		numCheck{"f1=0 SampleCoverage", SampleCoverage(e), 1},
-		numCheck{"f1=0 CoverageAt(100)", CoverageAt(e, 100), 1},
+		numCheck{"f1=0 SampleCoverage", sampleCoverage(e), 1},
+		numCheck{"f1=0 coverageAt(100)", coverageAt(e, 100), 1},
 	)
 	for _, ch := range checks {
 		if !numClose(ch.got, ch.want, coverageTol, 1e-15) {
@@ -57,11 +57,11 @@ func TestCoverageHand(t *testing.T) {
 		}
 	}
 	for _, x := range []float64{-1, math.NaN()} {
-		if !math.IsNaN(CoverageAt(c, x)) {
-			t.Errorf("CoverageAt(%v) should be NaN", x)
+		if !math.IsNaN(coverageAt(c, x)) {
+			t.Errorf("coverageAt(%v) should be NaN", x)
 		}
 	}
-	if !math.IsNaN(SampleCoverage(Counts{})) || !math.IsNaN(MarginalYield(Counts{})) || !math.IsNaN(CoverageAt(Counts{}, 1)) {
+	if !math.IsNaN(sampleCoverage(Counts{})) || !math.IsNaN(marginalYield(Counts{})) || !math.IsNaN(coverageAt(Counts{}, 1)) {
 		t.Error("empty table should give NaN")
 	}
 }
@@ -74,17 +74,17 @@ func TestCoverageGolden(t *testing.T) {
 		if math.IsNaN(g.coverage) {
 			continue
 		}
-		got := CoverageAt(g.c, float64(g.m))
+		got := coverageAt(g.c, float64(g.m))
 		if !numClose(got, g.coverage, coverageTol, 1e-300) {
 			t.Errorf("%s m=%d: got %.17g want %.17g", g.table, g.m, got, g.coverage)
 		}
 	}
 }
 
-// TestCoverageConsistency checks CoverageAt(n) == SampleCoverage, that
-// CoverageAt is non-decreasing in t (real t included) and that for t < n
+// TestCoverageConsistency checks coverageAt(n) == SampleCoverage, that
+// coverageAt is non-decreasing in t (real t included) and that for t < n
 // the rarefied coverage is the slope of the rarefaction curve,
-// 1 - C_m = E[S_{m+1}] - E[S_m] (Chao & Jost 2012), using Rarefy.
+// 1 - C_m = E[S_{m+1}] - E[S_m] (Chao & Jost 2012), using rarefy.
 func TestCoverageConsistency(t *testing.T) {
 	tabs := []map[int64]int64{
 		{1: 3, 2: 1, 4: 1},
@@ -96,37 +96,38 @@ func TestCoverageConsistency(t *testing.T) {
 	for _, tab := range tabs {
 		c := numCounts(t, tab)
 		n := c.Reads()
-		if got, want := CoverageAt(c, float64(n)), SampleCoverage(c); got != want {
-			t.Errorf("%v: CoverageAt(n) = %v, SampleCoverage = %v", tab, got, want)
+		if got, want := coverageAt(c, float64(n)), sampleCoverage(c); got != want {
+			t.Errorf("%v: coverageAt(n) = %v, SampleCoverage = %v", tab, got, want)
 		}
 		step := math.Max(1, float64(n)/500)
 		prev := math.Inf(-1)
 		for x := 0.0; x <= 3*float64(n); x += step / 3 {
-			got := CoverageAt(c, x)
+			got := coverageAt(c, x)
 			if got < prev-1e-15 || got < 0 || got > 1 {
-				t.Errorf("%v: CoverageAt(%v) = %v after %v", tab, x, got, prev)
+				t.Errorf("%v: coverageAt(%v) = %v after %v", tab, x, got, prev)
 			}
 			prev = got
 		}
 		for m := int64(0); m < n; m += max(1, n/200) {
-			a, _ := Rarefy(c, m)
-			b, _ := Rarefy(c, m+1)
-			if got := 1 - CoverageAt(c, float64(m)); !numClose(got, b-a, 1e-10, 1e-12) {
+			a, _ := rarefy(c, m)
+			b, _ := rarefy(c, m+1)
+			if got := 1 - coverageAt(c, float64(m)); !numClose(got, b-a, 1e-10, 1e-12) {
 				t.Errorf("%v m=%d: 1-C_m = %.15g, E[S_m+1]-E[S_m] = %.15g", tab, m, got, b-a)
 			}
 		}
 	}
 }
 
-// ExampleCoverageAt shows the coverage of the table {1:3, 2:1, 4:1}
+// ExampleCurve_Coverage shows the coverage of the table {1:3, 2:1, 4:1}
 // (9 reads) rarefied, at the sample and extrapolated (see TestCoverageHand
 // for the arithmetic).
-func ExampleCoverageAt() {
+func ExampleCurve_Coverage() {
 	c, _ := FromMap(map[int64]int64{1: 3, 2: 1, 4: 1})
+	cv := Curve{Counts: c}
 	for _, t := range []float64{2, 9, 12} {
-		fmt.Printf("C(%v) = %.4f\n", t, CoverageAt(c, t))
+		fmt.Printf("C(%v) = %.4f\n", t, cv.Coverage(t))
 	}
-	fmt.Printf("next read new: %.4f\n", MarginalYield(c))
+	fmt.Printf("next read new: %.4f\n", cv.MarginalYield(9))
 	// Output:
 	// C(2) = 0.3413
 	// C(9) = 0.6923

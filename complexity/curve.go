@@ -2,16 +2,26 @@ package complexity
 
 import "math"
 
-// Curve is a sample's expected-distinct curve at every depth: exact
-// rarefaction at or below the observed reads N, the fitted Model above.
-// Model may be nil (no admissible extrapolation): Curve then answers only
-// up to N and returns NaN beyond.
+// Curve is a sample's expected-distinct curve D(T) at every depth T in
+// reads: exact rarefaction at or below the observed reads N (Heck et al.
+// 1975, in its gamma-function continuation between whole depths), the
+// fitted Model above. Model may be nil (no admissible extrapolation):
+// Curve then answers only up to N and returns NaN beyond. Report.Curve is
+// the one Analyze chose; Curve{Counts: c} alone is the rarefaction curve.
+//
+// Its methods are the expectations at depth T: Distinct (D), DupFraction
+// (1 − D/T), Coverage (sample coverage), MarginalYield (dD/dT, the share
+// of new units among the next reads) and the inverse, ReadsFor.
 type Curve struct {
 	Counts Counts
 	Model  Model
 }
 
-// Distinct returns the expected distinct units after T reads.
+// Distinct returns D(T), the expected distinct units after T reads: at
+// or below N the rarefied mean E[S_T] = Σ_j f_j [1 − C(N−j, T)/C(N, T)]
+// (Hurlbert 1971; Heck, van Belle & Simberloff 1975), above it the Model,
+// at most D + (T − N) (each new unit takes a read). NaN for T < 0, and
+// above N without a Model.
 func (cv Curve) Distinct(T float64) float64 {
 	n := float64(cv.Counts.Reads())
 	switch {
@@ -41,21 +51,32 @@ func (cv Curve) DupFraction(T float64) float64 {
 	return 1 - cv.Distinct(T)/T
 }
 
-// Coverage returns the expected sample coverage at depth T (Chao & Jost
-// 2012; see CoverageAt).
-func (cv Curve) Coverage(T float64) float64 { return CoverageAt(cv.Counts, T) }
+// Coverage returns the expected sample coverage at depth T, the share of
+// the library's reads that belong to units seen by then (Chao & Jost 2012,
+// Ecology 93:2533), with f_j the units seen j times in the N reads:
+//
+//	T < N:  C_T = 1 − Σ_j (j f_j / N) C(N−j, T) / C(N−1, T)
+//	T = N:  C_N = 1 − (f1/N) [ (N−1) f1 / ((N−1) f1 + 2 f2) ]
+//	T > N:  C_T = 1 − (f1/N) [ (N−1) f1 / ((N−1) f1 + 2 f2) ]^(T−N+1)
+//
+// (f2 = 0: the bracket is (N−1)(f1−1)/((N−1)(f1−1)+2)). Above N this is
+// Chao & Jost's extrapolation from the counts alone; it does not use the
+// Model (the coverage the Model implies is 1 − MarginalYield). NaN for
+// T < 0 or an empty table.
+func (cv Curve) Coverage(T float64) float64 { return coverageAt(cv.Counts, T) }
 
-// MarginalYield returns dDistinct/dT at T: the expected share of the reads
-// just after depth T that are new units. At T = N it is the Chao & Jost
-// estimate 1 - coverage; above N it is the model's slope (central
-// difference over a relative step of yieldStep).
+// MarginalYield returns dD/dT at T: the expected share of the reads just
+// after depth T that are new units. Below N it is 1 − C_T (for rarefaction
+// exactly E[S_{T+1}] − E[S_T]; Chao & Jost 2012), at T = N the Chao & Jost
+// estimate 1 − C_N, above N the Model's slope (central difference over a
+// relative step of yieldStep). It falls from 1 towards 0 with depth.
 func (cv Curve) MarginalYield(T float64) float64 {
 	n := float64(cv.Counts.Reads())
 	if T <= n {
 		if T == n {
-			return MarginalYield(cv.Counts)
+			return marginalYield(cv.Counts)
 		}
-		return 1 - CoverageAt(cv.Counts, T)
+		return 1 - coverageAt(cv.Counts, T)
 	}
 	h := yieldStep * T
 	a, b := cv.Distinct(T-h), cv.Distinct(T+h)
@@ -72,25 +93,19 @@ func (cv Curve) MarginalYield(T float64) float64 {
 // curve over ±0.1% of the depth to be negligible.
 const yieldStep = 1e-3
 
-// Reach is the answer to an inverse query: the depth in reads, or
-// Reachable false when no depth up to the search limit gets there.
-type Reach struct {
-	Reads     float64
-	Reachable bool
-}
-
 // searchIter bounds bisection: 200 halvings of a range of at most 1e18
 // reads reach below one read.
 const searchIter = 200
 
 // solveIncreasing finds the smallest T in [lo, hi] with f(T) >= target for
-// a non-decreasing f, by bisection to one read.
-func solveIncreasing(f func(float64) float64, target, lo, hi float64) Reach {
+// a non-decreasing f, by bisection to one read (rounded up to whole
+// reads); NaN when f(hi) < target.
+func solveIncreasing(f func(float64) float64, target, lo, hi float64) float64 {
 	if !(f(hi) >= target) {
-		return Reach{Reads: math.NaN()}
+		return math.NaN()
 	}
 	if f(lo) >= target {
-		return Reach{Reads: lo, Reachable: true}
+		return lo
 	}
 	for i := 0; i < searchIter && hi-lo > 0.5; i++ {
 		mid := lo + (hi-lo)/2
@@ -100,30 +115,60 @@ func solveIncreasing(f func(float64) float64, target, lo, hi float64) Reach {
 			lo = mid
 		}
 	}
-	return Reach{Reads: math.Ceil(hi), Reachable: true}
+	return math.Ceil(hi)
 }
 
-// ReadsForDistinct returns the depth at which target distinct units are
-// expected, searching up to maxT reads.
-func (cv Curve) ReadsForDistinct(target, maxT float64) Reach {
-	return solveIncreasing(cv.Distinct, target, 0, maxT)
+// ReadsFor returns the smallest depth T in reads, at most maxT, at which
+// the curve's expectation reaches t (see TargetKind), NaN when it does not
+// get there by maxT:
+//
+//	TargetDistinct  Distinct(T) >= t.Value
+//	TargetDup       DupFraction(T) >= t.Value
+//	TargetCoverage  Coverage(T) >= t.Value without a Model; with one,
+//	                MarginalYield(T) <= 1 − t.Value (see TargetCoverage)
+//	TargetYield     MarginalYield(T) <= t.Value
+//
+// Each quantity is monotone in T (the curve is concave and increasing), so
+// the answer is found by bisection to one read. At or below the observed
+// reads N it is exact rarefaction, so a target already met at N gets the
+// smallest depth ≤ N that meets it.
+func (cv Curve) ReadsFor(t Target, maxT float64) float64 { return cv.solve(t, 1, maxT) }
+
+// solve is ReadsFor on the curve read at depth multiples of scale: depth T
+// of the caller is depth T·scale of cv (a bootstrap replicate, anchored at
+// its own reads, answers in the observed sample's depths; see bootstrap).
+func (cv Curve) solve(t Target, scale, maxT float64) float64 {
+	v := t.Value
+	switch t.Kind {
+	case TargetDistinct:
+		return cv.solveJoined(func(T float64) float64 { return cv.Distinct(T * scale) }, v, 0, scale, maxT)
+	case TargetDup:
+		return cv.solveJoined(func(T float64) float64 { return 1 - cv.Distinct(T*scale)/T }, v, 1, scale, maxT)
+	case TargetCoverage:
+		if cv.Model != nil {
+			// The coverage the curve implies is 1 − its slope; Coverage's
+			// curve-free extrapolation above N ignores the fitted curve.
+			return cv.solve(Target{TargetYield, 1 - v}, scale, maxT)
+		}
+		return solveIncreasing(func(T float64) float64 { return cv.Coverage(T * scale) }, v, 1, maxT)
+	case TargetYield:
+		return cv.solveJoined(func(T float64) float64 { return -scale * cv.MarginalYield(T*scale) }, -v, 1, scale, maxT)
+	}
+	return math.NaN()
 }
 
-// ReadsForDupFraction returns the depth at which the duplicate fraction
-// reaches f (it only grows with depth), searching up to maxT reads.
-func (cv Curve) ReadsForDupFraction(f, maxT float64) Reach {
-	return solveIncreasing(cv.DupFraction, f, 1, maxT)
-}
-
-// ReadsForCoverage returns the depth at which the expected sample coverage
-// reaches c, searching up to maxT reads.
-func (cv Curve) ReadsForCoverage(c, maxT float64) Reach {
-	return solveIncreasing(cv.Coverage, c, 1, maxT)
-}
-
-// ReadsForMarginalYield returns the depth at which the share of new units
-// among further reads falls to y (more reads stop paying), searching up to
-// maxT reads.
-func (cv Curve) ReadsForMarginalYield(y, maxT float64) Reach {
-	return solveIncreasing(func(T float64) float64 { return -cv.MarginalYield(T) }, -y, 1, maxT)
+// solveJoined is solveIncreasing on a curve with a Model, searched on
+// each side of the observed depth apart: rarefaction and the fitted curve
+// meet at N, but their slopes need not (the model's is fitted, the
+// rarefied one exact), so a slope target could be crossed twice near N.
+// A target met at N is answered at or below it, from rarefaction.
+func (cv Curve) solveJoined(f func(float64) float64, target, lo, scale, maxT float64) float64 {
+	n := float64(cv.Counts.Reads()) / scale
+	if cv.Model == nil || !(n > lo && n < maxT) {
+		return solveIncreasing(f, target, lo, maxT)
+	}
+	if f(n) >= target {
+		return solveIncreasing(f, target, lo, n)
+	}
+	return solveIncreasing(f, target, n, maxT)
 }

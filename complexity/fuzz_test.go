@@ -23,7 +23,8 @@ func countsFromBytes(data []byte) (Counts, bool) {
 // FuzzAnalyze: any frequency counts give a report whose values are finite
 // or missing (NaN, shown as empty/null), never infinite, with predictions
 // within [0, depth] and never below the observed distinct count above the
-// observed depth; and Analyze returns (no hang, no panic).
+// observed depth; reach answers within the horizon, inside their interval,
+// or missing with a note; and Analyze returns (no hang, no panic).
 func FuzzAnalyze(f *testing.F) {
 	f.Add([]byte{0, 0, 100, 0, 1, 0, 30, 0, 2, 0, 10, 0})
 	f.Add([]byte{0, 0, 1, 0})
@@ -37,7 +38,18 @@ func FuzzAnalyze(f *testing.F) {
 		}
 		n := float64(c.Reads())
 		depths := []float64{n / 2, 2 * n, 10 * n, 100 * n}
-		r := Analyze(c, Options{Depths: depths, Bootstrap: 4, Seed: 1, Threads: 2, Gates: NoGates(), Curve: []float64{1, n, 3 * n}})
+		reach := []Target{{TargetDistinct, 2 * float64(c.Distinct())}, {TargetDup, 0.5}, {TargetCoverage, 0.99}, {TargetYield, 0.1}}
+		r := Analyze(c, Options{Depths: depths, Bootstrap: 4, Seed: 1, Threads: 2, Gates: NoGates(), Curve: []float64{1, n, 3 * n}, Reach: reach})
+		for _, q := range r.Reach {
+			switch {
+			case math.IsNaN(q.Reads) && q.Note == "":
+				t.Fatalf("%v: %v missing without a note", c.Classes(), q.Target)
+			case !math.IsNaN(q.Reads) && !(q.Reads >= 0 && q.Reads <= horizon*n):
+				t.Fatalf("%v: %v reached at %v, outside [0, %v]", c.Classes(), q.Target, q.Reads, horizon*n)
+			case q.Lo > q.Reads || q.Hi < q.Reads:
+				t.Fatalf("%v: %v at %v outside its interval [%v, %v]", c.Classes(), q.Target, q.Reads, q.Lo, q.Hi)
+			}
+		}
 		vals := append(flat(r), r.DupFraction, r.SampleCoverage, r.MarginalYield)
 		for _, v := range vals {
 			if math.IsInf(v, 0) {

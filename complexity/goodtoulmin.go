@@ -2,7 +2,7 @@ package complexity
 
 import "math"
 
-// GoodToulmin returns the Good–Toulmin estimate of the expected number of
+// goodToulmin returns the Good–Toulmin estimate of the expected number of
 // units not yet observed that t*N further reads would find, N being the
 // observed reads:
 //
@@ -11,7 +11,7 @@ import "math"
 // Under Poisson sampling (each unit's reads Poisson with a fixed rate) it
 // is unbiased for every t. For t <= 1 its terms shrink with j; for t > 1
 // they grow like t^j and the series diverges (its variance explodes), so
-// GoodToulmin returns NaN outside [0, 1], as for NaN t. Larger t needs a
+// goodToulmin returns NaN outside [0, 1], as for NaN t. Larger t needs a
 // stabilised form of the series (Padé/continued fraction), not this
 // function.
 //
@@ -28,7 +28,7 @@ import "math"
 //	Biometrika 43:45-63.
 //	Neumaier, A. (1974). Rundungsfehleranalyse einiger Verfahren zur
 //	Summation endlicher Summen. ZAMM 54:39-51.
-func GoodToulmin(c Counts, t float64) float64 {
+func goodToulmin(c Counts, t float64) float64 {
 	if !(t >= 0 && t <= 1) {
 		return math.NaN()
 	}

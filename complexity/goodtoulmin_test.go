@@ -15,17 +15,17 @@ func TestGoodToulminHand(t *testing.T) {
 	//   U(1)   = 3 - 1 - 1 = 1
 	c := numCounts(t, map[int64]int64{1: 3, 2: 1, 4: 1})
 	for _, ch := range []numCheck{
-		{"U(0.5)", GoodToulmin(c, 0.5), 19.0 / 16},
-		{"U(1)", GoodToulmin(c, 1), 1},
-		{"U(0)", GoodToulmin(c, 0), 0},
-		{"empty U(0.5)", GoodToulmin(Counts{}, 0.5), 0},
+		{"U(0.5)", goodToulmin(c, 0.5), 19.0 / 16},
+		{"U(1)", goodToulmin(c, 1), 1},
+		{"U(0)", goodToulmin(c, 0), 0},
+		{"empty U(0.5)", goodToulmin(Counts{}, 0.5), 0},
 	} {
 		if !numClose(ch.got, ch.want, 1e-15, 0) {
 			t.Errorf("%s: got %.17g want %.17g", ch.name, ch.got, ch.want)
 		}
 	}
 	for _, x := range []float64{-0.1, 1.0000001, 2, math.NaN(), math.Inf(1)} {
-		if !math.IsNaN(GoodToulmin(c, x)) {
+		if !math.IsNaN(goodToulmin(c, x)) {
 			t.Errorf("U(%v) should be NaN", x)
 		}
 	}
@@ -37,12 +37,12 @@ func TestGoodToulminHand(t *testing.T) {
 		m[j] = 1e6
 	}
 	d := numCounts(t, m)
-	if got := GoodToulmin(d, 1); got != 0 {
+	if got := goodToulmin(d, 1); got != 0 {
 		t.Errorf("alternating 1e6 at t=1: got %v want 0", got)
 	}
 	x := 0.99
 	want := 1e6 * x * (1 - math.Pow(x, 40)) / (1 + x)
-	if got := GoodToulmin(d, x); !numClose(got, want, 0, 4e6*0x1p-52) {
+	if got := goodToulmin(d, x); !numClose(got, want, 0, 4e6*0x1p-52) {
 		t.Errorf("alternating 1e6 at t=0.99: got %.17g want %.17g", got, want)
 	}
 }
@@ -76,12 +76,12 @@ func TestGoodToulminUnbiased(t *testing.T) {
 		for i, l := range rates {
 			per[i] = int64(distuv.Poisson{Lambda: l, Src: src}.Rand())
 		}
-		c, err := FromUnitCounts(per)
+		c, err := fromUnitCounts(per)
 		if err != nil {
 			t.Fatal(err)
 		}
 		for k, x := range ts {
-			u := GoodToulmin(c, x)
+			u := goodToulmin(c, x)
 			sum[k] += u
 			sum2[k] += u * u
 		}

@@ -118,8 +118,8 @@ func (f *lnFit) nll(p []float64) float64 {
 	return gridNLL(f, lo, hi, lo < hi)
 }
 
-// FitLognormal fits the Poisson–lognormal model to c.
-func FitLognormal(c Counts) (Model, error) {
+// fitLognormal fits the Poisson–lognormal model to c.
+func fitLognormal(c Counts) (Model, error) {
 	m, err := fitLognormalHist(newHist(c, censorJ), nil)
 	if err != nil {
 		return nil, err

@@ -22,5 +22,5 @@ type Model interface {
 // it into an empty cell or null; it never reaches output as "NaN".
 var missing = math.NaN()
 
-// IsMissing reports whether v is a missing value.
-func IsMissing(v float64) bool { return math.IsNaN(v) }
+// isMissing reports whether v is a missing value.
+func isMissing(v float64) bool { return math.IsNaN(v) }

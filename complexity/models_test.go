@@ -178,7 +178,7 @@ func TestPoissonSizeScipy(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		m, err := FitPoisson(c)
+		m, err := fitPoisson(c)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -259,7 +259,7 @@ func TestZTNBRecovers(t *testing.T) {
 		b.AddUnit(poissonDraw(rng, lam))
 	}
 	c, _ := b.Counts()
-	m, err := FitZTNB(c)
+	m, err := fitZTNBAll(c)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -326,7 +326,7 @@ func TestModelsAnchored(t *testing.T) {
 		if got := m.Distinct(n); relDiff(got, d) > 1e-12 {
 			t.Errorf("%s: Distinct(N) = %g, want %g", cd.name, got, d)
 		}
-		if !Admissible(m, c, 1000*n) {
+		if !isAdmissible(m, c, 1000*n) {
 			t.Errorf("%s: not admissible", cd.name)
 		}
 		r, err := refit(cd.name, c, 1000*n, m)
@@ -355,7 +355,7 @@ func TestModelsAnchored(t *testing.T) {
 // the Lander–Waterman limit U → ∞); an empty table cannot be fitted.
 func TestPoissonEdges(t *testing.T) {
 	c, _ := NewCounts([]Class{{1, 10}})
-	m, err := FitPoisson(c)
+	m, err := fitPoisson(c)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -365,10 +365,10 @@ func TestPoissonEdges(t *testing.T) {
 	if _, ok := m.Limit(); ok {
 		t.Error("limit of an all-singleton table must be unbounded")
 	}
-	if _, err := FitPoisson(Counts{}); err == nil {
+	if _, err := fitPoisson(Counts{}); err == nil {
 		t.Error("empty table fitted")
 	}
-	if v := m.Distinct(math.NaN()); !IsMissing(v) {
+	if v := m.Distinct(math.NaN()); !isMissing(v) {
 		t.Errorf("D(NaN) = %g", v)
 	}
 }

@@ -53,9 +53,9 @@ const (
 	npmleLowReach = 0.1
 )
 
-// FitNPMLE fits the grid NPMLE Poisson mixture to c for predictions up to
+// fitNPMLE fits the grid NPMLE Poisson mixture to c for predictions up to
 // maxT reads.
-func FitNPMLE(c Counts, maxT float64) (Model, error) {
+func fitNPMLE(c Counts, maxT float64) (Model, error) {
 	n, d := float64(c.Reads()), float64(c.Distinct())
 	cls := c.Classes()
 	if d < 2 || len(cls) == 0 || !(maxT >= n) {

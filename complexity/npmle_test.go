@@ -43,7 +43,7 @@ func TestNPMLEPoissonClosedForm(t *testing.T) {
 			t.Fatal(err)
 		}
 		n := float64(c.Reads())
-		fit, err := FitNPMLE(c, 100*n)
+		fit, err := fitNPMLE(c, 100*n)
 		if err != nil {
 			t.Fatal(err)
 		}

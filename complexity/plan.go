@@ -33,12 +33,23 @@ import (
 // Cambridge, §5.5.3 (KKT conditions) and the water-filling example of
 // §5.5.3; Balinski ML, Young HP (1982) Fair Representation, Yale (the
 // largest-remainder rule).
-func SplitBudget(curves []Curve, usable []float64, budget int64) (reads []int64, level float64) {
+//
+// maxReads, when not nil, caps what each sample may get (in reads bought;
+// e.g. what takes it to the deepest depth its curve is trusted at). When
+// the caps leave part of the budget, the rest is not given (the sum is
+// then below budget) and level is the lowest slope among the capped.
+func SplitBudget(curves []Curve, usable []float64, budget int64, maxReads []float64) (reads []int64, level float64) {
 	reads = make([]int64, len(curves))
 	if budget <= 0 || len(curves) == 0 {
 		return reads, math.NaN()
 	}
 	B := float64(budget)
+	capOf := func(i int) float64 {
+		if maxReads == nil {
+			return B
+		}
+		return math.Max(0, math.Min(B, maxReads[i]))
+	}
 	// slope(i, x): marginal yield per purchased read of sample i after x
 	// further reads; decreasing in x.
 	slope := func(i int, x float64) float64 {
@@ -59,15 +70,16 @@ func SplitBudget(curves []Curve, usable []float64, budget int64) (reads []int64,
 		}
 	}
 	// share(i, λ): the x_i at which sample i's slope falls to λ, within
-	// [0, B].
+	// [0, cap_i].
 	share := func(i int, lam float64) float64 {
-		if !ok[i] || slope(i, 0) <= lam {
+		c := capOf(i)
+		if !ok[i] || c == 0 || slope(i, 0) <= lam {
 			return 0
 		}
-		if slope(i, B) >= lam {
-			return B
+		if slope(i, c) >= lam {
+			return c
 		}
-		lo, hi := 0.0, B
+		lo, hi := 0.0, c
 		for k := 0; k < searchIter && hi-lo > planResolution*B; k++ {
 			mid := lo + (hi-lo)/2
 			if slope(i, mid) > lam {
@@ -98,13 +110,25 @@ func SplitBudget(curves []Curve, usable []float64, budget int64) (reads []int64,
 		}
 		for i := range curves {
 			if ok[i] {
-				x[i] = B / float64(m)
+				x[i] = math.Min(B/float64(m), capOf(i))
 			}
 		}
 		if m == 0 {
 			return reads, math.NaN()
 		}
-		return Apportion(x, budget), 0
+		return Apportion(x, roundedSum(x, budget)), 0
+	}
+	if total(0) <= B {
+		// The caps bind before the budget runs out: everyone gets the cap.
+		x := make([]float64, len(curves))
+		low := math.Inf(1)
+		for i := range curves {
+			x[i] = share(i, 0)
+			if x[i] > 0 {
+				low = math.Min(low, slope(i, x[i]))
+			}
+		}
+		return Apportion(x, roundedSum(x, budget)), low
 	}
 	// total(λ) decreases from ≥ B near 0 to 0 at top.
 	lo, hi := 0.0, top
@@ -129,6 +153,15 @@ func SplitBudget(curves []Curve, usable []float64, budget int64) (reads []int64,
 		}
 	}
 	return Apportion(x, budget), level
+}
+
+// roundedSum is the whole reads a set of shares comes to (at most budget).
+func roundedSum(x []float64, budget int64) int64 {
+	s := 0.0
+	for _, v := range x {
+		s += v
+	}
+	return min(budget, int64(math.Floor(s+0.5)))
 }
 
 // planResolution is the relative width at which the bisections of

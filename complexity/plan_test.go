@@ -52,7 +52,7 @@ func TestSplitBudgetClosedForm(t *testing.T) {
 		N = append(N, float64(cv.Counts.Reads()))
 	}
 	const budget = 60000
-	got, level := SplitBudget(curves, u, budget)
+	got, level := SplitBudget(curves, u, budget, nil)
 	// Closed form, all three sequenced: ln(1/λ) Σ S_i/u_i = B + Σ (N_i - S_i ln u_i)/u_i.
 	num, den := float64(budget), 0.0
 	for i := range S {
@@ -82,7 +82,7 @@ func TestSplitBudgetClosedForm(t *testing.T) {
 func TestSplitBudgetKKT(t *testing.T) {
 	curves := []Curve{lwCurve(t, 1000, 20000), lwCurve(t, 100000, 20000), lwCurve(t, 60000, 30000)}
 	u := []float64{1, 1, 0.9}
-	got, level := SplitBudget(curves, u, 80000)
+	got, level := SplitBudget(curves, u, 80000, nil)
 	if got[0] != 0 {
 		t.Errorf("exhausted library got %d reads", got[0])
 	}

@@ -23,9 +23,9 @@ type poissonModel struct {
 	u float64 // library size; +Inf when D = N
 }
 
-// FitPoisson fits the single-Poisson saturation model to c. It returns an
+// fitPoisson fits the single-Poisson saturation model to c. It returns an
 // error for an empty table.
-func FitPoisson(c Counts) (Model, error) {
+func fitPoisson(c Counts) (Model, error) {
 	n, d := float64(c.Reads()), float64(c.Distinct())
 	if d < 1 {
 		return nil, errNoFit

@@ -5,7 +5,7 @@ import (
 	"sort"
 )
 
-// Rarefy returns the expected number of distinct units, and its variance,
+// rarefy returns the expected number of distinct units, and its variance,
 // in a subsample of m reads drawn without replacement from the N reads of
 // c (rarefaction).
 //
@@ -58,7 +58,7 @@ import (
 // the approximation is reached only at small m.
 //
 // m must lie in [0, N]; outside it (and for an empty table with m != 0)
-// both results are NaN. Rarefy(c, 0) = (0, 0) and Rarefy(c, N) = (D, 0).
+// both results are NaN. rarefy(c, 0) = (0, 0) and rarefy(c, N) = (D, 0).
 // The mean is accurate to a few eps relative. The variance is a difference
 // of terms as large as the mean, so its error is best stated in absolute
 // terms: a few eps times the mean, which is relatively larger where the
@@ -75,7 +75,7 @@ import (
 //	sufficient sample size. Ecology 56:1459-1461.
 //	Loader, C. (2000). Fast and accurate computation of binomial
 //	probabilities. Technical report, Bell Labs.
-func Rarefy(c Counts, m int64) (mean, variance float64) {
+func rarefy(c Counts, m int64) (mean, variance float64) {
 	if m < 0 || m > c.Reads() {
 		return math.NaN(), math.NaN()
 	}
@@ -84,7 +84,7 @@ func Rarefy(c Counts, m int64) (mean, variance float64) {
 
 // rarefyPairBudget bounds the class pairs evaluated exactly for the
 // rarefaction variance (about 50 ms of work at ~50 ns a pair); beyond it
-// the conditioned binomial approximation is used (see Rarefy).
+// the conditioned binomial approximation is used (see rarefy).
 const rarefyPairBudget = 1 << 20
 
 // hgDirect is the largest number of factors summed directly in
@@ -94,7 +94,7 @@ const hgDirect = 16
 
 // rarefyMeanAt is the rarefaction expectation at a real depth t in [0, N],
 // by the gamma-function continuation of q_j (see hgLogAbsent): equal to
-// Rarefy at integers, smooth and increasing between them.
+// rarefy at integers, smooth and increasing between them.
 func rarefyMeanAt(c Counts, t float64) float64 {
 	if !(t >= 0 && t <= float64(c.Reads())) {
 		return math.NaN()
@@ -202,7 +202,7 @@ func rarefyBudget(c Counts, t float64, wantVar bool, budget int) (mean, variance
 }
 
 // rarefyVarBinomial is the conditioned binomial-thinning approximation of
-// the rarefaction variance documented at Rarefy.
+// the rarefaction variance documented at rarefy.
 func rarefyVarBinomial(c Counts, t float64) float64 {
 	n := float64(c.Reads())
 	p := t / n
@@ -439,8 +439,8 @@ func neumaierAdd(s, c, x float64) (float64, float64) {
 	return t, c
 }
 
-// RarefyMean returns the expected distinct units in a subsample of t reads
-// drawn without replacement, as Rarefy's mean but without the variance
+// rarefyMean returns the expected distinct units in a subsample of t reads
+// drawn without replacement, as rarefy's mean but without the variance
 // (much cheaper for many depths), for real t in [0, N] by the
 // gamma-function continuation. It returns NaN outside [0, N].
-func RarefyMean(c Counts, t float64) float64 { return rarefyMeanAt(c, t) }
+func rarefyMean(c Counts, t float64) float64 { return rarefyMeanAt(c, t) }

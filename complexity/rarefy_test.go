@@ -104,7 +104,7 @@ func readRarefyGolden(t *testing.T) []rarefyGolden {
 	return out
 }
 
-// TestRarefyGolden compares Rarefy with exact values computed by
+// TestRarefyGolden compares rarefy with exact values computed by
 // scripts/ref_scipy_rarefaction.py (scipy.special.comb exact=True big
 // integers, python3-scipy 1.10.1; mpmath 1.2.1 at 60 digits for the
 // middle depths of the 716000-read table).
@@ -115,7 +115,7 @@ func TestRarefyGolden(t *testing.T) {
 		t.Logf("worst relative error: mean %.2g, variance %.2g (%s)", worstMean, worstVar, worstAt)
 	}()
 	for _, g := range readRarefyGolden(t) {
-		mean, v := Rarefy(g.c, g.m)
+		mean, v := rarefy(g.c, g.m)
 		worstMean = math.Max(worstMean, numRelErr(mean, g.mean))
 		if r := numRelErr(v, g.variance); r > worstVar {
 			worstVar, worstAt = r, fmt.Sprintf("%s m=%d: variance %.3g, mean %.3g", g.table, g.m, g.variance, g.mean)
@@ -137,26 +137,26 @@ func TestRarefyHand(t *testing.T) {
 	// 121/36 = 5/36. From the formula: q_1 = C(3,2)/6 = 1/2, q_2 = C(2,2)/6
 	// = 1/6, E = 2*(1/2) + 1*(5/6) = 11/6.
 	c := numCounts(t, map[int64]int64{1: 2, 2: 1})
-	mean, v := Rarefy(c, 2)
+	mean, v := rarefy(c, 2)
 	if !numClose(mean, 11.0/6, 1e-15, 0) || !numClose(v, 5.0/36, 1e-14, 0) {
 		t.Errorf("{1:2,2:1} m=2: got %v %v want %v %v", mean, v, 11.0/6, 5.0/36)
 	}
 	// One read always finds one unit (common practice: E[S_1] = 1, Var 0).
 	for _, tab := range []map[int64]int64{{1: 5}, {3: 1, 10: 4}, {1: 1000000, 2: 3}} {
 		c := numCounts(t, tab)
-		mean, v := Rarefy(c, 1)
+		mean, v := rarefy(c, 1)
 		if !numClose(mean, 1, 1e-15, 0) || math.Abs(v) > 1e-12 {
 			t.Errorf("%v m=1: got %v %v want 1 0", tab, mean, v)
 		}
 		n := c.Reads()
-		mean, v = Rarefy(c, n)
+		mean, v = rarefy(c, n)
 		if mean != float64(c.Distinct()) || v != 0 {
 			t.Errorf("%v m=N: got %v %v want %d 0", tab, mean, v, c.Distinct())
 		}
 		// m = N-1: one read is left out; the unit is lost only if it was a
 		// singleton, so E = D - f1/N and Var = p(1-p), p = f1/N.
 		p := float64(c.Units(1)) / float64(n)
-		mean, v = Rarefy(c, n-1)
+		mean, v = rarefy(c, n-1)
 		if !numClose(mean, float64(c.Distinct())-p, 1e-14, 0) || !numClose(v, p*(1-p), 1e-9, 1e-13*mean) {
 			t.Errorf("%v m=N-1: got %v %v want %v %v", tab, mean, v, float64(c.Distinct())-p, p*(1-p))
 		}
@@ -167,15 +167,15 @@ func TestRarefyHand(t *testing.T) {
 func TestRarefyDomain(t *testing.T) {
 	c := numCounts(t, map[int64]int64{1: 3, 2: 1})
 	for _, m := range []int64{-1, 6, math.MaxInt64} {
-		mean, v := Rarefy(c, m)
+		mean, v := rarefy(c, m)
 		if !math.IsNaN(mean) || !math.IsNaN(v) {
 			t.Errorf("m=%d: got %v %v, want NaN NaN", m, mean, v)
 		}
 	}
-	if mean, v := Rarefy(Counts{}, 0); mean != 0 || v != 0 {
+	if mean, v := rarefy(Counts{}, 0); mean != 0 || v != 0 {
 		t.Errorf("empty m=0: got %v %v", mean, v)
 	}
-	if mean, _ := Rarefy(Counts{}, 1); !math.IsNaN(mean) {
+	if mean, _ := rarefy(Counts{}, 1); !math.IsNaN(mean) {
 		t.Errorf("empty m=1: got %v", mean)
 	}
 }
@@ -187,7 +187,7 @@ func TestRarefyDomain(t *testing.T) {
 func TestRarefyLargeN(t *testing.T) {
 	c := numCounts(t, map[int64]int64{1: 1e9, 2: 2e8, 50: 1e7, 1000: 1e5, 100000: 1000})
 	n := float64(c.Reads())
-	mean, _ := Rarefy(c, 1)
+	mean, _ := rarefy(c, 1)
 	if !numClose(mean, 1, 1e-13, 0) {
 		t.Errorf("m=1: got %.17g want 1", mean)
 	}
@@ -197,7 +197,7 @@ func TestRarefyLargeN(t *testing.T) {
 		pairs += float64(cl.Units) * j * (j - 1)
 	}
 	p := pairs / (n * (n - 1))
-	mean, v := Rarefy(c, 2)
+	mean, v := rarefy(c, 2)
 	if !numClose(mean, 2-p, 1e-14, 0) {
 		t.Errorf("m=2: got %.17g want %.17g", mean, 2-p)
 	}
@@ -211,14 +211,14 @@ func TestRarefyLargeN(t *testing.T) {
 	// S_3 = 3 - (pairs of reads from one unit among 3) + ...: check only
 	// that the variance is positive and below that of m = 2 scaled by 3
 	// (three pairs of reads, each colliding with probability ~p).
-	_, v3 := Rarefy(c, 3)
+	_, v3 := rarefy(c, 3)
 	if !(v3 > 0 && v3 < 3.5*p) {
 		t.Errorf("m=3: variance %v outside (0, 3.5p = %v)", v3, 3.5*p)
 	}
 }
 
 // TestRarefyRealDepth checks that the real-depth continuation agrees with
-// Rarefy at integers and is increasing between them.
+// rarefy at integers and is increasing between them.
 func TestRarefyRealDepth(t *testing.T) {
 	c := numCounts(t, map[int64]int64{1: 40, 2: 12, 3: 5, 17: 2, 30: 1})
 	n := c.Reads()
@@ -227,7 +227,7 @@ func TestRarefyRealDepth(t *testing.T) {
 		x := float64(i) / 4
 		got := rarefyMeanAt(c, x)
 		if i%4 == 0 {
-			want, _ := Rarefy(c, i/4)
+			want, _ := rarefy(c, i/4)
 			if !numClose(got, want, 1e-14, 0) {
 				t.Errorf("t=%v: got %v want %v", x, got, want)
 			}
@@ -258,10 +258,10 @@ func TestRarefyVarianceApprox(t *testing.T) {
 	n := c.Reads()
 	for _, d := range []int64{100, 1000, n / 100, n / 10, n / 2, n - n/10, n - n/100} {
 		_, exact := rarefyBudget(c, float64(d), true, math.MaxInt)
-		_, got := Rarefy(c, d)
+		_, got := rarefy(c, d)
 		approx := rarefyVarBinomial(c, float64(d))
 		if got != approx && got != exact {
-			t.Errorf("m=%d: Rarefy variance %v is neither exact %v nor approximation %v", d, got, exact, approx)
+			t.Errorf("m=%d: rarefy variance %v is neither exact %v nor approximation %v", d, got, exact, approx)
 		}
 		r := numRelErr(approx, exact)
 		bound := 5e-7
@@ -274,7 +274,7 @@ func TestRarefyVarianceApprox(t *testing.T) {
 		if r > bound {
 			t.Errorf("m=%d: approximation off by %.3g relative, want <= %.3g", d, r, bound)
 		}
-		t.Logf("m=%d (%.3g N): exact %.8g approx %.8g rel %.2g (Rarefy used %s)", d, float64(d)/float64(n), exact, approx, r,
+		t.Logf("m=%d (%.3g N): exact %.8g approx %.8g rel %.2g (rarefy used %s)", d, float64(d)/float64(n), exact, approx, r,
 			map[bool]string{true: "exact", false: "approx"}[got == exact])
 	}
 }
@@ -290,7 +290,7 @@ func BenchmarkRarefyVariance(b *testing.B) {
 	d := c.Reads() / 100
 	b.ReportAllocs()
 	for b.Loop() {
-		Rarefy(c, d)
+		rarefy(c, d)
 	}
 }
 
@@ -332,11 +332,11 @@ func BenchmarkRarefyMean(b *testing.B) {
 	}
 }
 
-// ExampleRarefy rarefies a small table: three units seen once, one seen
-// twice and one seen four times (9 reads), to 4 reads.
-func ExampleRarefy() {
+// ExampleCurve_Distinct rarefies a small table: three units seen once, one
+// seen twice and one seen four times (9 reads), to 4 reads (E[S_4] by
+// hand: 5 − [3·C(8,4) + C(7,4) + C(5,4)]/C(9,4) = 5 − 250/126).
+func ExampleCurve_Distinct() {
 	c, _ := FromMap(map[int64]int64{1: 3, 2: 1, 4: 1})
-	mean, variance := Rarefy(c, 4)
-	fmt.Printf("E[S_4] = %.6f, Var = %.6f\n", mean, variance)
-	// Output: E[S_4] = 3.015873, Var = 0.475939
+	fmt.Printf("E[S_4] = %.6f\n", Curve{Counts: c}.Distinct(4))
+	// Output: E[S_4] = 3.015873
 }

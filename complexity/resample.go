@@ -31,7 +31,7 @@ func binomial(src rand.Source, n int64, p float64) int64 {
 	return int64(v)
 }
 
-// Resample draws a bootstrap replicate of c: Distinct() units drawn with
+// resample draws a bootstrap replicate of c: Distinct() units drawn with
 // replacement from the observed units, so the class sizes are
 // Multinomial(D; n_j/D) (Efron 1979 bootstrap of the units, as used for
 // species-richness intervals by Chao et al.). The replicate has the same
@@ -41,7 +41,7 @@ func binomial(src rand.Source, n int64, p float64) int64 {
 // a few standard deviations of 2^63 reads, never for real data) is drawn
 // again, which conditions the multinomial on a representable total;
 // after resampleTries such draws c itself is returned.
-func Resample(c Counts, rng *rand.Rand) Counts {
+func resample(c Counts, rng *rand.Rand) Counts {
 	for try := 0; try < resampleTries; try++ {
 		if out, ok := resampleOnce(c, rng); ok {
 			return out
@@ -77,11 +77,11 @@ func resampleOnce(c Counts, rng *rand.Rand) (Counts, bool) {
 	return out, true
 }
 
-// Thin keeps each read independently with probability f (binomial
+// thin keeps each read independently with probability f (binomial
 // thinning): a unit seen j times is seen Binomial(j, f) times afterwards.
 // Units thinned to zero vanish. This is exactly a shallower Poisson or
 // multinomial sample of the same library (thinning a Poisson process).
-func Thin(c Counts, f float64, rng *rand.Rand) Counts {
+func thin(c Counts, f float64, rng *rand.Rand) Counts {
 	if f >= 1 {
 		return c
 	}

@@ -24,7 +24,7 @@ func TestThinExpectation(t *testing.T) {
 		const reps = 400
 		var sd, sd2, sn, sn2 float64
 		for k := 0; k < reps; k++ {
-			tc := Thin(c, f, newRand(42, uint64(k)))
+			tc := thin(c, f, newRand(42, uint64(k)))
 			d, n := float64(tc.Distinct()), float64(tc.Reads())
 			sd += d
 			sd2 += d * d
@@ -51,7 +51,7 @@ func TestResample(t *testing.T) {
 	const reps = 500
 	var s, s2 float64
 	for k := 0; k < reps; k++ {
-		rc := Resample(c, newRand(7, uint64(k)))
+		rc := resample(c, newRand(7, uint64(k)))
 		if rc.Distinct() != c.Distinct() {
 			t.Fatalf("replicate %d: distinct %d, want %d", k, rc.Distinct(), c.Distinct())
 		}
@@ -65,7 +65,7 @@ func TestResample(t *testing.T) {
 		t.Errorf("mean reads %v, want %v (se %v)", m, c.Reads(), se)
 	}
 	// Same stream, same replicate.
-	a, b := Resample(c, newRand(7, 3)), Resample(c, newRand(7, 3))
+	a, b := resample(c, newRand(7, 3)), resample(c, newRand(7, 3))
 	if a.Reads() != b.Reads() {
 		t.Errorf("same seed and stream gave different replicates")
 	}
@@ -80,7 +80,7 @@ func TestThinHugeClasses(t *testing.T) {
 		t.Fatal(err)
 	}
 	const f = 0.1
-	tc := Thin(c, f, newRand(3, 1))
+	tc := thin(c, f, newRand(3, 1))
 	want := f * float64(c.Reads())
 	// Var of thinned reads = N f (1-f); the window's truncation is < 1e-30.
 	se := math.Sqrt(float64(c.Reads()) * f * (1 - f))
@@ -103,7 +103,7 @@ func TestResampleHuge(t *testing.T) {
 		t.Fatal(err)
 	}
 	for k := uint64(0); k < 200; k++ {
-		rc := Resample(c, newRand(9, k))
+		rc := resample(c, newRand(9, k))
 		if rc.Reads() <= 0 || rc.Distinct() != c.Distinct() {
 			t.Fatalf("replicate %d: reads %d distinct %d", k, rc.Reads(), rc.Distinct())
 		}

@@ -5,7 +5,7 @@ import (
 	"math"
 )
 
-// QD computes the coefficients of the corresponding continued fraction
+// qd computes the coefficients of the corresponding continued fraction
 // (C-fraction) of a power series by the quotient–difference algorithm:
 //
 //	a_0 + a_1 z + a_2 z^2 + ... = c_0 / (1 - c_1 z / (1 - c_2 z / (1 - ...)))
@@ -18,7 +18,7 @@ import (
 //	q_{m+1}^(k) = q_m^(k+1) e_m^(k+1) / e_m^(k).
 //
 // Truncating the fraction after c_d gives the Padé approximant
-// [floor(d/2) / ceil(d/2)] of the series. QD returns as many coefficients
+// [floor(d/2) / ceil(d/2)] of the series. qd returns as many coefficients
 // as the series determines (len(a) at most) and stops early, returning
 // what it has, when a division by zero or a non-finite value shows that the
 // table breaks down (the series is then not "normal" at that order).
@@ -27,7 +27,7 @@ import (
 //   - Rutishauser H (1954) Der Quotienten-Differenzen-Algorithmus. ZAMP 5:233.
 //   - Henrici P (1974) Applied and Computational Complex Analysis, vol 1, §7.6.
 //   - Baker GA, Graves-Morris P (1996) Padé Approximants, 2nd ed., §4.
-func QD(a []float64) []float64 {
+func qd(a []float64) []float64 {
 	n := len(a)
 	if n == 0 || a[0] == 0 || !isFinite(a[0]) {
 		return nil
@@ -94,10 +94,10 @@ func QD(a []float64) []float64 {
 
 func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
-// EvalCF evaluates the C-fraction c_0/(1 - c_1 z/(1 - c_2 z/(1 - ...)))
+// cfValue evaluates the C-fraction c_0/(1 - c_1 z/(1 - c_2 z/(1 - ...)))
 // truncated after c_{len(c)-1}, by the forward (Wallis) recurrence with
 // rescaling. It returns NaN where the denominator vanishes.
-func EvalCF(c []float64, z float64) float64 {
+func cfValue(c []float64, z float64) float64 {
 	v, _ := evalCF(c, z)
 	return v
 }
@@ -129,13 +129,13 @@ func evalCF(c []float64, z float64) (value, denom float64) {
 	return a / b, b
 }
 
-// rfaMaxTerms bounds the Good–Toulmin terms fed to the QD table. Beyond a
-// few dozen terms the QD recurrences lose every significant digit in
+// rfaMaxTerms bounds the Good–Toulmin terms fed to the qd table. Beyond a
+// few dozen terms the qd recurrences lose every significant digit in
 // float64 (the table is a ratio of Hankel determinants), and the high-j
 // counts are sparse noise anyway.
 const rfaMaxTerms = 40
 
-// RFA is a rational-function (Padé) stabilisation of the Good–Toulmin
+// rfaModel is a rational-function (Padé) stabilisation of the Good–Toulmin
 // series. With t = T/N - 1 the extra reads as a multiple of the observed N,
 // Good & Toulmin (1956) give the expected new units as
 //
@@ -150,20 +150,20 @@ const rfaMaxTerms = 40
 // For odd d, numerator and denominator of t CF_d(t) have equal degree and
 // the curve tends to a finite limit; even depths grow without bound.
 // Below the observed depth Distinct uses exact rarefaction when available.
-type RFA struct {
+type rfaModel struct {
 	c     Counts
 	cf    []float64 // c_0 .. c_d
 	depth int
 }
 
 // Name returns "rfa-d" with the truncation depth.
-func (r *RFA) Name() string { return fmt.Sprintf("rfa-%d", r.depth) }
+func (r *rfaModel) Name() string { return fmt.Sprintf("rfa-%d", r.depth) }
 
 // Depth returns the continued-fraction truncation depth d.
-func (r *RFA) Depth() int { return r.depth }
+func (r *rfaModel) Depth() int { return r.depth }
 
 // Distinct returns D + t CF_d(t), t = T/N - 1, for T >= N.
-func (r *RFA) Distinct(T float64) float64 {
+func (r *rfaModel) Distinct(T float64) float64 {
 	n := float64(r.c.Reads())
 	if !(T >= n) || n == 0 {
 		if T >= 0 && T < n {
@@ -172,28 +172,28 @@ func (r *RFA) Distinct(T float64) float64 {
 		return math.NaN()
 	}
 	t := T/n - 1
-	return float64(r.c.Distinct()) + t*EvalCF(r.cf, t)
+	return float64(r.c.Distinct()) + t*cfValue(r.cf, t)
 }
 
 // Limit returns the t -> infinity limit for odd depths: the ratio of the
 // leading coefficients, obtained by evaluating the fraction at a very
 // large t. Even depths are unbounded.
-func (r *RFA) Limit() (float64, bool) {
+func (r *rfaModel) Limit() (float64, bool) {
 	if r.depth%2 == 0 {
 		return math.Inf(1), false
 	}
 	// t CF(t) for odd d tends to a constant; evaluate the fraction in 1/t.
 	const far = 1e12
-	v := float64(r.c.Distinct()) + far*EvalCF(r.cf, far)
+	v := float64(r.c.Distinct()) + far*cfValue(r.cf, far)
 	if !isFinite(v) || v < float64(r.c.Distinct()) {
 		return math.NaN(), false
 	}
 	return v, true
 }
 
-// GoodToulminSeries returns the coefficients of g(t) (see RFA):
+// goodToulminSeries returns the coefficients of g(t) (see RFA):
 // (-1)^k n_{k+1} for k = 0 .. terms-1.
-func GoodToulminSeries(c Counts, terms int) []float64 {
+func goodToulminSeries(c Counts, terms int) []float64 {
 	a := make([]float64, terms)
 	for k := range a {
 		v := float64(c.Units(int64(k + 1)))
@@ -205,9 +205,9 @@ func GoodToulminSeries(c Counts, terms int) []float64 {
 	return a
 }
 
-// RFAApproximants returns the RFA curves of every available depth,
+// rfaApproximants returns the RFA curves of every available depth,
 // deepest first. Depths whose continued fraction broke down are absent.
-func RFAApproximants(c Counts) []*RFA {
+func rfaApproximants(c Counts) []*rfaModel {
 	if c.Units(1) == 0 || c.Distinct() < 2 {
 		return nil
 	}
@@ -215,24 +215,24 @@ func RFAApproximants(c Counts) []*RFA {
 	if terms > rfaMaxTerms {
 		terms = rfaMaxTerms
 	}
-	cf := QD(GoodToulminSeries(c, terms))
-	var out []*RFA
+	cf := qd(goodToulminSeries(c, terms))
+	var out []*rfaModel
 	for d := len(cf) - 1; d >= 1; d-- {
-		out = append(out, &RFA{c: c, cf: cf[:d+1], depth: d})
+		out = append(out, &rfaModel{c: c, cf: cf[:d+1], depth: d})
 	}
 	return out
 }
 
-// Admissible reports whether m is a plausible saturation curve from the
+// isAdmissible reports whether m is a plausible saturation curve from the
 // observed depth N to maxT: finite, at least the observed distinct count,
 // non-decreasing, concave, never more new units than new reads, with no
 // pole in between (a sign change of the continued fraction's denominator).
 // The curve is checked on a log-spaced grid of admissGrid points.
-func Admissible(m Model, c Counts, maxT float64) bool {
+func isAdmissible(m Model, c Counts, maxT float64) bool {
 	return admissibleFrom(m, float64(c.Reads()), float64(c.Distinct()), maxT)
 }
 
-// admissibleFrom checks m as Admissible does, from the point (n, d).
+// admissibleFrom checks m as isAdmissible does, from the point (n, d).
 func admissibleFrom(m Model, n, d, maxT float64) bool {
 	if !(n > 0) {
 		return false
@@ -243,7 +243,7 @@ func admissibleFrom(m Model, n, d, maxT float64) bool {
 	prevT, prevV := n, d
 	prevSlope := math.Inf(1)
 	var prevDen float64
-	rfa, _ := m.(*RFA)
+	rfa, _ := m.(*rfaModel)
 	for i := 1; i <= admissGrid; i++ {
 		T := n * math.Pow(maxT/n, float64(i)/admissGrid)
 		v := m.Distinct(T)
@@ -287,21 +287,21 @@ const (
 	admissSlopeTol = 1e-3
 )
 
-// FitRFA returns the deepest admissible odd-depth (bounded) RFA curve for
+// fitRFA returns the deepest admissible odd-depth (bounded) RFA curve for
 // depths up to maxT, then the deepest admissible even one, or an error
 // when no approximant is admissible. This is the textbook choice; the
 // selection used by Analyze lives in select.go.
-func FitRFA(c Counts, maxT float64) (*RFA, error) {
-	all := RFAApproximants(c)
+func fitRFA(c Counts, maxT float64) (*rfaModel, error) {
+	all := rfaApproximants(c)
 	for _, odd := range []bool{true, false} {
 		for _, r := range all {
-			if (r.depth%2 == 1) == odd && Admissible(r, c, maxT) {
+			if (r.depth%2 == 1) == odd && isAdmissible(r, c, maxT) {
 				return r, nil
 			}
 		}
 	}
-	return nil, ErrNoAdmissible
+	return nil, errNoAdmissible
 }
 
-// ErrNoAdmissible is returned when no rational approximant is admissible.
-var ErrNoAdmissible = fmt.Errorf("complexity: no admissible rational approximant")
+// errNoAdmissible is returned when no rational approximant is admissible.
+var errNoAdmissible = fmt.Errorf("complexity: no admissible rational approximant")

@@ -14,7 +14,7 @@ func closeRel(got, want, tol float64) bool {
 	return math.Abs(got-want) <= tol*math.Max(1, math.Abs(want))
 }
 
-// TestQDPade checks QD + EvalCF against Padé approximants given in closed
+// TestQDPade checks qd + cfValue against Padé approximants given in closed
 // form by Baker & Graves-Morris, Padé Approximants, 2nd ed. (1996): for
 // ln(1+x), [1/1] = 2x/(2+x) and [2/2] = (6x+3x²)/(6+6x+x²); for e^x,
 // [2/2] = (1 + x/2 + x²/12)/(1 - x/2 + x²/12).
@@ -26,7 +26,7 @@ func TestQDPade(t *testing.T) {
 	for k := range g {
 		g[k] = math.Pow(-1, float64(k)) / float64(k+1)
 	}
-	cg := QD(g)
+	cg := qd(g)
 	// e^x = sum x^k/k!; depth 4 is [2/2].
 	e := make([]float64, 8)
 	f := 1.0
@@ -36,15 +36,15 @@ func TestQDPade(t *testing.T) {
 		}
 		e[k] = 1 / f
 	}
-	ce := QD(e)
+	ce := qd(e)
 	for _, x := range []float64{0.01, 0.3, 1, 2.5, 7} {
 		cases := []struct {
 			name      string
 			got, want float64
 		}{
-			{"ln(1+x) [1/1]", x * EvalCF(cg[:2], x), 2 * x / (2 + x)},
-			{"ln(1+x) [2/2]", x * EvalCF(cg[:4], x), (6*x + 3*x*x) / (6 + 6*x + x*x)},
-			{"exp(x) [2/2]", EvalCF(ce[:5], x), (1 + x/2 + x*x/12) / (1 - x/2 + x*x/12)},
+			{"ln(1+x) [1/1]", x * cfValue(cg[:2], x), 2 * x / (2 + x)},
+			{"ln(1+x) [2/2]", x * cfValue(cg[:4], x), (6*x + 3*x*x) / (6 + 6*x + x*x)},
+			{"exp(x) [2/2]", cfValue(ce[:5], x), (1 + x/2 + x*x/12) / (1 - x/2 + x*x/12)},
 		}
 		for _, c := range cases {
 			if !closeRel(c.got, c.want, padeTol) {
@@ -57,11 +57,11 @@ func TestQDPade(t *testing.T) {
 // TestQDBreakdown: a series with a zero leading term or a degenerate table
 // stops instead of producing non-finite coefficients.
 func TestQDBreakdown(t *testing.T) {
-	if c := QD([]float64{0, 1, 2}); c != nil {
+	if c := qd([]float64{0, 1, 2}); c != nil {
 		t.Errorf("zero a0: got %v, want nil", c)
 	}
 	// 1 + x + x² + ... = 1/(1-x): the table is exactly [0/1], e_1 = 0.
-	c := QD([]float64{1, 1, 1, 1, 1})
+	c := qd([]float64{1, 1, 1, 1, 1})
 	if len(c) != 2 || c[0] != 1 || c[1] != 1 {
 		t.Errorf("geometric series: got %v, want [1 1]", c)
 	}
@@ -82,7 +82,7 @@ func TestRFAGoodToulminAgreement(t *testing.T) {
 		t.Fatal(err)
 	}
 	n := float64(c.Reads())
-	for _, r := range RFAApproximants(c) {
+	for _, r := range rfaApproximants(c) {
 		tt := 0.01
 		series := 0.0
 		for j := int64(1); j <= 8; j++ {

@@ -50,7 +50,7 @@ func BenchmarkRefit(b *testing.B) {
 			b.ReportAllocs()
 			rng := rand.New(rand.NewPCG(2, 3))
 			for i := 0; i < b.N; i++ {
-				rc := Resample(c, rng)
+				rc := resample(c, rng)
 				if _, err := refit(name, rc, maxT, hint); err != nil {
 					b.Fatal(err)
 				}
@@ -69,7 +69,7 @@ func BenchmarkRefitSelected(b *testing.B) {
 	b.ReportAllocs()
 	rng := rand.New(rand.NewPCG(2, 3))
 	for i := 0; i < b.N; i++ {
-		if _, err := refit(method, Resample(c, rng), maxT, m); err != nil {
+		if _, err := refit(method, resample(c, rng), maxT, m); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -122,11 +122,11 @@ func TestExtrapolateNeverBreaks(t *testing.T) {
 				t.Errorf("%v (%s): Distinct(%gN) = %g", m, method, f, v)
 			}
 		}
-		if !Admissible(mod, c, 1000*n) {
+		if !isAdmissible(mod, c, 1000*n) {
 			t.Errorf("%v (%s): not admissible", m, method)
 		}
 		for b := 0; b < 3; b++ {
-			rc := Resample(c, rng)
+			rc := resample(c, rng)
 			if rm, err := refit(method, rc, 1000*float64(rc.Reads()), mod); err == nil {
 				_ = rm.Distinct(10 * float64(rc.Reads()))
 			}

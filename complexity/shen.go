@@ -2,7 +2,7 @@ package complexity
 
 import "math"
 
-// NewShenModel returns the Chao1-based richness extrapolation of Shen,
+// newShenModel returns the Chao1-based richness extrapolation of Shen,
 // Chao & Lin (2003) as a Model named "chao1-extrapolation". With n reads,
 // S_obs distinct units, f1 singletons and f2 doubletons, the undetected
 // units are estimated by the bias-corrected Chao1 term (Chao 1984, in
@@ -16,7 +16,7 @@ import "math"
 //
 // computed as S_obs - f0 expm1(m log1p(-f1/(n f0 + f1))). Below the
 // observed depth (t < n) Distinct returns the rarefaction expectation
-// (Rarefy; real t by its gamma-function continuation). The limit is
+// (rarefy; real t by its gamma-function continuation). The limit is
 // S_obs + f0, the bias-corrected Chao1 estimate. When f1 <= 1 the estimate
 // f0 is 0 and the curve is flat at S_obs beyond n.
 //
@@ -29,7 +29,7 @@ import "math"
 //	new species in further taxonomic sampling. Ecology 84:798-804.
 //	Chao, A. (1984). Nonparametric estimation of the number of classes in
 //	a population. Scandinavian Journal of Statistics 11:265-270.
-func NewShenModel(c Counts) Model {
+func newShenModel(c Counts) Model {
 	m := shenModel{c: c, n: float64(c.Reads()), sobs: float64(c.Distinct())}
 	if m.n > 0 {
 		f1, f2 := float64(c.Units(1)), float64(c.Units(2))
@@ -41,7 +41,7 @@ func NewShenModel(c Counts) Model {
 	return m
 }
 
-// shenModel is the Model returned by NewShenModel.
+// shenModel is the Model returned by newShenModel.
 type shenModel struct {
 	c       Counts
 	n, sobs float64

@@ -19,7 +19,7 @@ func TestShenHand(t *testing.T) {
 	//   S(9+10) = 5 + (4/3)(1 - (4/5)^10) = 5 + (4/3)(8717049/9765625)
 	//   limit   = 5 + 4/3 = 19/3
 	c := numCounts(t, map[int64]int64{1: 3, 2: 1, 4: 1})
-	m := NewShenModel(c)
+	m := newShenModel(c)
 	if m.Name() != "chao1-extrapolation" {
 		t.Errorf("name %q", m.Name())
 	}
@@ -61,7 +61,7 @@ func TestShenShape(t *testing.T) {
 		{1: 2, 5: 1},
 	} {
 		c := numCounts(t, tab)
-		m := NewShenModel(c)
+		m := newShenModel(c)
 		n := float64(c.Reads())
 		prev := -1.0
 		for x := 0.0; x < 50*n; x += n / 64 {
@@ -81,11 +81,11 @@ func TestShenShape(t *testing.T) {
 	}
 	// f1 = 1: f0 = 0, flat at S_obs.
 	c := numCounts(t, map[int64]int64{1: 1, 3: 4})
-	m := NewShenModel(c)
+	m := newShenModel(c)
 	if got := m.Distinct(1000); got != 5 {
 		t.Errorf("f1=1: Distinct(1000) = %v want 5", got)
 	}
-	e := NewShenModel(Counts{})
+	e := newShenModel(Counts{})
 	if e.Distinct(0) != 0 || !math.IsNaN(e.Distinct(1)) {
 		t.Error("empty table: want 0 at 0, NaN beyond")
 	}

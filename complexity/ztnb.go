@@ -24,7 +24,7 @@ import "math"
 // returned when the table has fewer than two distinct units or no
 // duplicates.
 //
-// FitZTNB uses every class (the textbook fit). The censored variant used as
+// fitZTNBAll uses every class (the textbook fit). The censored variant used as
 // a candidate by extrapolate lumps classes above censorJ (mixture.go).
 //
 // References: Sampford (1955), The truncated negative binomial distribution,
@@ -147,8 +147,8 @@ func (z *ztnbData) nll(p []float64) float64 {
 	return -ll / z.d
 }
 
-// FitZTNB fits the zero-truncated negative binomial to every class of c.
-func FitZTNB(c Counts) (Model, error) {
+// fitZTNBAll fits the zero-truncated negative binomial to every class of c.
+func fitZTNBAll(c Counts) (Model, error) {
 	z := ztnbData{d: float64(c.Distinct())}
 	for _, cl := range c.classes {
 		z.j = append(z.j, float64(cl.Times))

@@ -209,7 +209,8 @@ func DecodeBAM(b []byte, nRef int, rec *Record) error {
 		p += 4
 	}
 	p += int(lSeq+1)/2 + int(lSeq)
-	rec.RG, rec.RX, rec.MC = nil, nil, nil
+	rec.RG, rec.MC, rec.samAux = nil, nil, nil
+	rec.bamAux = b[p:len(b):len(b)]
 	cg, err := scanAux(b[p:], rec)
 	if err != nil {
 		return err
@@ -234,7 +235,7 @@ func DecodeBAM(b []byte, nRef int, rec *Record) error {
 }
 
 // scanAux walks the optional fields (SAM specification section 4.2.4),
-// keeping RG, RX and MC and checking every length on the way. It returns
+// keeping RG and MC and checking every length on the way. It returns
 // the elements of a CG:B:I array (the real CIGAR of a long alignment).
 func scanAux(a []byte, rec *Record) (cg []byte, err error) {
 	for len(a) > 0 {
@@ -261,8 +262,6 @@ func scanAux(a []byte, rec *Record) (cg []byte, err error) {
 				switch {
 				case t0 == 'R' && t1 == 'G':
 					rec.RG = v
-				case t0 == 'R' && t1 == 'X':
-					rec.RX = v
 				case t0 == 'M' && t1 == 'C':
 					rec.MC = v
 				}

@@ -47,7 +47,8 @@ func FuzzParseSAMLine(f *testing.F) {
 		_ = Unclipped5(rec.Pos, rec.Cigar, rec.Flags&FlagReverse != 0)
 		_, _ = ParseSpot(rec.Name), NameUMI(rec.Name)
 		var k Keyer
-		k.Opt.OpticalNames, k.Opt.UMIFromName = true, true
+		k.Opt.OpticalNames, k.Opt.UMIFromName, k.Opt.Collapse = true, true, true
+		k.Opt.UMITags, k.Opt.CellTag = []Tag{{'R', 'X'}, {'B', 'X'}}, Tag{'C', 'B'}
 		k.Alignment(&rec, 0)
 	})
 }
@@ -55,7 +56,7 @@ func FuzzParseSAMLine(f *testing.F) {
 func FuzzFASTQ(f *testing.F) {
 	f.Add([]byte("@r1\nACGT\n+\nIIII\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		r := NewFASTQReader(bytes.NewReader(data))
+		r := newFASTQReader(bytes.NewReader(data))
 		var rec FASTQRecord
 		for i := 0; ; i++ {
 			err := r.Read(&rec)
@@ -105,7 +106,7 @@ func FuzzOpen(f *testing.F) {
 			for r.Read(&rec) == nil {
 			}
 		case FormatFASTQ:
-			r := NewFASTQReader(in.Reader())
+			r := NewFASTQReader(in)
 			var rec FASTQRecord
 			for r.Read(&rec) == nil {
 			}

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 
+	"github.com/klauspost/compress/flate"
 	"github.com/klauspost/compress/gzip"
 )
 
@@ -233,11 +234,12 @@ func wrapInflate(err error) error {
 	case errors.Is(err, gzip.ErrChecksum), errors.Is(err, errBGZFCRC):
 		return fmt.Errorf("reads: compressed data corrupted (CRC mismatch); re-copy or regenerate the file")
 	case errors.Is(err, gzip.ErrHeader), errors.Is(err, errBGZFHeader), errors.Is(err, errBGZFSize):
-		return fmt.Errorf("reads: compressed data corrupted (%v); re-copy or regenerate the file", err)
+		return fmt.Errorf("reads: compressed data corrupted (%w); re-copy or regenerate the file", err)
 	}
-	var ce interface{ Error() string }
-	if errors.As(err, &ce) && bytes.Contains([]byte(err.Error()), []byte("flate")) {
-		return fmt.Errorf("reads: compressed data corrupted (%v); re-copy or regenerate the file", err)
+	var corrupt flate.CorruptInputError
+	var internal flate.InternalError
+	if errors.As(err, &corrupt) || errors.As(err, &internal) {
+		return fmt.Errorf("reads: compressed data corrupted (%w); re-copy or regenerate the file", err)
 	}
 	return err
 }

@@ -7,7 +7,9 @@ cases.tsv that cmd/headroom/badinput_test.go runs.
 Standard library only. Every file is invented and built here from the
 format's specification (BAM and BGZF: SAM specification sections 4.1-4.2;
 gzip: RFC 1952; BIOM 1.0: the biom-format.org JSON description; HDF5: the
-file signature of the HDF5 file format specification). Output is
+file signature of the HDF5 file format specification; BIOM 2.1 files are
+copied or cut from testdata/taxa/biom2/, written by
+scripts/biom2_fixtures.py with python3-biom-format and python3-h5py). Output is
 deterministic: re-running the script rewrites identical files.
 
 Manifest columns (tab-separated, one header line, '#' lines are comments):
@@ -427,8 +429,61 @@ case("taxa_gz_cut", "taxa @taxa_gz_cut.tsv.gz", 1, "taxa_gz_cut.tsv.gz:1477: gzi
      "gzip TSV cut at half its compressed length")
 
 put("taxa_hdf5.biom", b"\x89HDF\r\n\x1a\n" + bytes(56))
-case("taxa_hdf5", "taxa @taxa_hdf5.biom", 1, "this is a BIOM 2 file (HDF5)",
-     "HDF5 format signature (BIOM 2.x files are HDF5) and zeros")
+case("taxa_hdf5", "taxa @taxa_hdf5.biom", 1, "taxa_hdf5.biom: HDF5: superblock gives sizes of offsets 0 and lengths 0",
+     "HDF5 format signature (BIOM 2.x files are HDF5) and zeros: a superblock version 0 with no valid sizes")
+
+# BIOM 2.1 (HDF5). The malformed files are written with python3-h5py by
+# scripts/biom2_fixtures.py (testdata/taxa/biom2/bad/); the cut ones are
+# cut from its biom-format-written small.biom.
+BIOM2 = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "testdata", "taxa", "biom2")
+
+
+def biom2(name):
+    with open(os.path.join(BIOM2, name), "rb") as f:
+        return f.read()
+
+
+h5small = biom2("small.biom")
+put("taxa_h5_cut.biom", h5small[:len(h5small) // 2])
+case("taxa_h5_cut", "taxa @taxa_h5_cut.biom", 1, "taxa_h5_cut.biom: HDF5 object /",
+     "BIOM 2.1 file (biom-format) cut at half its length: an object lies beyond the end")
+put("taxa_h5_superblock.biom", h5small[:40])
+case("taxa_h5_superblock", "taxa @taxa_h5_superblock.biom", 1, "taxa_h5_superblock.biom: HDF5: ",
+     "BIOM 2.1 file cut inside its superblock")
+for name, want, what in (
+        ("no_sample_indptr", "HDF5 object /sample/matrix/indptr: no such object", "BIOM 2.1 without sample/matrix/indptr"),
+        ("no_observation_indptr", "HDF5 object /observation/matrix/indptr: no such object", "BIOM 2.1 without observation/matrix/indptr"),
+        ("fraction", "/sample/matrix/data: entry 1 (sample \"pond-B\", taxon \"ASV1\"): \"2.5\" is not a whole number",
+         "BIOM 2.1 whose float64 data holds 2.5"),
+        ("indptr_decreasing", "/sample/matrix/indptr: entries 1 and 2 are 1 and 0", "BIOM 2.1 whose sample indptr falls"),
+        ("indptr_beyond", "/sample/matrix/indptr: last entry", "BIOM 2.1 whose sample indptr ends beyond data"),
+        ("inflate", "/sample/matrix/data: chunk 0 does not inflate", "BIOM 2.1 with a damaged deflate chunk"),
+        ("dense", "HDF5 object /sample: HDF5 feature not supported: dense link storage",
+         "BIOM 2.1 in the newest HDF5 format with 13 members in /sample (dense link storage, not read)"),
+):
+    put("taxa_h5_%s.biom" % name, biom2(os.path.join("bad", name + ".biom")))
+    case("taxa_h5_" + name, "taxa @taxa_h5_%s.biom" % name, 1, want, what)
+put("taxa_h5_not_biom.h5", biom2(os.path.join("bad", "not_biom.h5")))
+case("taxa_h5_not_biom", "taxa @taxa_h5_not_biom.h5", 1, "an HDF5 file, but not a BIOM 2.1 table: it has no /observation group",
+     "HDF5 file (h5py) with one dataset, not BIOM")
+
+# Files for another subcommand given to taxa: named, with the subcommand.
+SAM_REC = "r1\t0\tchr1\t100\t60\t8M\t*\t0\t0\tACGTACGT\tIIIIIIII\n"
+put("taxa_wrong_bam.bam", bgzf_block(b"BAM\x01" + struct.pack("<i", 0) + struct.pack("<i", 0)) + BGZF_EOF)
+case("taxa_wrong_bam", "taxa @taxa_wrong_bam.bam", 1, "taxa_wrong_bam.bam: this is a BAM file (aligned reads), not a taxon count table: use headroom reads",
+     "a BAM file (BGZF, magic BAM\\1, no references) given to taxa")
+put("taxa_wrong_sam.sam", "@HD\tVN:1.6\tSO:unsorted\n@SQ\tSN:chr1\tLN:1000\n" + SAM_REC)
+case("taxa_wrong_sam", "taxa @taxa_wrong_sam.sam", 1, "this is a SAM file (aligned reads), not a taxon count table: use headroom reads",
+     "a SAM file with header given to taxa")
+put("taxa_wrong_sam_nohead.sam", SAM_REC)
+case("taxa_wrong_sam_nohead", "taxa @taxa_wrong_sam_nohead.sam", 1, "SAM file without header",
+     "one SAM alignment line, no header, given to taxa")
+put("taxa_wrong_fastq.fq", "@read1\nACGTACGT\n+\nIIIIIIII\n@read2\nACGTTT\n+\nIIIIII\n")
+case("taxa_wrong_fastq", "taxa @taxa_wrong_fastq.fq", 1, "this is a FASTQ file (reads), not a taxon count table: use headroom reads",
+     "a FASTQ file given to taxa")
+put("taxa_wrong_counts.tsv", "sample\ttimes_seen\tunits\nLIB-1\t1\t40\nLIB-1\t2\t9\n")
+case("taxa_wrong_counts", "taxa @taxa_wrong_counts.tsv", 1, "use headroom counts",
+     "a frequency-count table (headroom's own header) given to taxa")
 
 
 def biom(data, shape=(2, 2), rows=("T1", "T2"), cols=("S1", "S2"), mtype="dense"):

@@ -85,8 +85,9 @@ func depthAdvice(tab *amplicon.Table) []byte {
 				continue
 			}
 			m := float64(row.depth)
-			cov = append(cov, complexity.CoverageAt(c, m))
-			share = append(share, complexity.RarefyMean(c, m)/float64(c.Distinct()))
+			cv := complexity.Curve{Counts: c}
+			cov = append(cov, cv.Coverage(m))
+			share = append(share, cv.Distinct(m)/float64(c.Distinct()))
 		}
 		fmt.Fprintf(&b, "%d\t%s\t%d\t%d\t%s\t%s\t%s\t%s\t%s\n", row.depth, strings.Join(row.basis, ","),
 			len(cov), len(dropped), fracCell(minOf(cov)).tsv, fracCell(median(cov)).tsv,

@@ -76,7 +76,7 @@ func runMerge(a *app, args []string) error {
 				sums[s.Name] = s.Counts
 				continue
 			}
-			sum, err := complexity.Add(prev, s.Counts)
+			sum, err := prev.Add(s.Counts)
 			if err != nil {
 				return inputf(displayName(f), 0, "sample %q: merged reads overflow 64-bit integers", s.Name)
 			}

@@ -15,10 +15,9 @@ func init() {
 const taxaAbout = `Reads a taxon count table (OTU/ASV table) and estimates, for every sample,
 how many more taxa deeper sequencing would find. TABLE is tab- or
 comma-separated text (delimiter sniffed, '#' comment lines, one header row)
-with taxa as rows (default) or samples as rows, or a BIOM 1.0 JSON file
-(dense or sparse); gzip is accepted; '-' reads standard input. Trailing text
-columns such as a taxonomy string are skipped. BIOM 2 (HDF5) files must be
-converted first (biom convert --to-tsv or --to-json).
+with taxa as rows (default) or samples as rows, a BIOM 1.0 JSON file
+(dense or sparse) or a BIOM 2.1 (HDF5) file; gzip is accepted; '-' reads
+standard input. Trailing text columns such as a taxonomy string are skipped.
 
 Writes one summary row per sample (TSV or JSON) to stdout or -o FILE, with
 the columns every subcommand has plus chao1 chao1_lo chao1_hi ace

@@ -65,6 +65,9 @@ func withInterval(v, lo, hi float64) string {
 	if math.IsNaN(lo) || math.IsNaN(hi) {
 		return human(v)
 	}
+	if math.IsInf(hi, 1) {
+		return fmt.Sprintf("%s (%s–∞)", human(v), human(lo))
+	}
 	return fmt.Sprintf("%s (%s–%s)", human(v), human(lo), human(hi))
 }
 

@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 
-	"headroom/amplicon"
 	"headroom/reads"
 )
 
@@ -18,13 +17,6 @@ func legacyPosition(err error) (line int64, where []string, inner error) {
 			where = append(where, fmt.Sprintf("record %d", rp.Record))
 		}
 		return rp.Line, where, rp.Err
-	}
-	var ap *amplicon.ParseError
-	if errors.As(err, &ap) {
-		if ap.Column > 0 {
-			where = append(where, fmt.Sprintf("column %d", ap.Column))
-		}
-		return ap.Line, where, errors.New(ap.Msg)
 	}
 	return -1, nil, err
 }

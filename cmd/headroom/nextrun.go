@@ -65,11 +65,11 @@ func newPlan(s *shared, samples []sampleInput) (*plan, error) {
 	usable := make([]float64, len(samples))
 	for i, e := range est {
 		in := e.in
-		curves[i] = complexity.Curve{Counts: in.counts, Model: e.rep.Model}
+		curves[i] = e.rep.Curve
 		usable[i] = in.usable()
 		pl.rows = append(pl.rows, planRow{name: in.name, readsNow: in.bought(), shareNow: shares[i],
 			usable: usable[i], curveNow: float64(in.counts.Reads()), distinctNow: in.counts.Distinct()})
-		if e.rep.Model == nil {
+		if e.rep.Curve.Model == nil {
 			pl.rows[i].notes = append(pl.rows[i].notes, "no curve beyond the observed depth: not planned")
 		}
 	}
@@ -79,9 +79,27 @@ func newPlan(s *shared, samples []sampleInput) (*plan, error) {
 		next = pl.reachSplit(s, est)
 	default:
 		var level float64
-		next, level = complexity.SplitBudget(curves, usable, pl.budget)
+		// No sample is planned past reachHorizon times its reads: beyond
+		// that the curve's accuracy was never measured, and an optimiser
+		// trusting a far extrapolation pours reads into small libraries
+		// whose curves overshoot (scripts/planbench).
+		caps := make([]float64, len(samples))
+		for i, r := range pl.rows {
+			caps[i] = (reachHorizon - 1) * r.curveNow / r.usable
+		}
+		next, level = complexity.SplitBudget(curves, usable, pl.budget, caps)
 		if level == 0 {
 			pl.notes = append(pl.notes, "no sample gains new units from more reads: the budget is split evenly and buys nothing new")
+		}
+		var given int64
+		for i, x := range next {
+			given += x
+			if float64(x) >= caps[i]-1 && x > 0 {
+				pl.rows[i].notes = append(pl.rows[i].notes, fmt.Sprintf("capped at %gx its reads now, the deepest its curve is trusted at; it would take more", reachHorizon))
+			}
+		}
+		if given < pl.budget {
+			pl.notes = append(pl.notes, fmt.Sprintf("%s of the %s reads are left unassigned: every sample that gains is at %gx its reads", human(float64(pl.budget-given)), human(float64(pl.budget)), reachHorizon))
 		}
 	}
 	next2 := make([]int64, len(pl.rows))
@@ -97,7 +115,7 @@ func newPlan(s *shared, samples []sampleInput) (*plan, error) {
 				r.action = "sequence"
 			}
 		}
-		if r.depth() > reachHorizon*r.curveNow {
+		if r.depth() > reachHorizon*r.curveNow*(1+1e-9) {
 			r.notes = append(r.notes, fmt.Sprintf("the plan takes this sample past %gx its reads, beyond the depths whose accuracy was measured", reachHorizon))
 		}
 	}

@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"strings"
 	"sync"
 
 	"headroom/complexity"
@@ -97,9 +98,10 @@ func estimateAll(s *shared, samples []sampleInput, p pass) []estimated {
 					o.Bootstrap = 0
 				}
 				e := estimated{in: samples[i], rep: complexity.Analyze(samples[i].counts, o)}
-				cv := complexity.Curve{Counts: samples[i].counts, Model: e.rep.Model}
-				for _, r := range s.reaches {
-					e.reach = append(e.reach, answerReach(r, cv))
+				for k, r := range e.rep.Reach {
+					// Notes name the target as the user wrote it (distinct:3x).
+					note := strings.Replace(r.Note, r.Target.String(), s.reaches[k].label, 1)
+					e.reach = append(e.reach, reachAnswer{spec: s.reaches[k], reads: r.Reads, lo: r.Lo, hi: r.Hi, note: note})
 				}
 				out[i] = e
 				done <- struct{}{}
@@ -131,6 +133,9 @@ func (s *shared) options(c complexity.Counts, wantCurve bool, threads int, extra
 		o.Depths = append(o.Depths, d.reads(n))
 	}
 	o.Depths = append(o.Depths, extra...)
+	for _, r := range s.reaches {
+		o.Reach = append(o.Reach, r.target(c.Distinct()))
+	}
 	o.Gates.MaxDup, o.Gates.MinDistinct, o.Gates.MinCoverage = s.maxDup, s.minDistinct, s.minCoverage
 	switch {
 	case s.targetDepth != nil:

@@ -120,7 +120,7 @@ func TestPlanGoalReach(t *testing.T) {
 				t.Errorf("%s: sequenced on a short budget without saying it falls short: %q", r["sample"], r["notes"])
 			}
 		case "stop":
-			if n != 0 || !strings.Contains(r["notes"], "not planned: distinct:2x not reached within 100x") {
+			if n != 0 || !strings.Contains(r["notes"], "not planned: distinct:2x not reached") {
 				t.Errorf("%s: stop with %d reads, notes %q", r["sample"], n, r["notes"])
 			}
 		}

@@ -106,47 +106,20 @@ func (r reachSpec) resolve(distinctNow int64) float64 {
 	return r.value
 }
 
-// reachHorizon is how far beyond the observed reads a target is sought:
-// the accuracy benchmark measures the curves up to 100x (BENCHMARKS.md),
-// and a depth further out would be a guess presented as a number.
+// reachHorizon is how far beyond the observed reads a target is sought
+// and a plan goes: the accuracy benchmark measures the curves up to 100x
+// (BENCHMARKS.md; complexity answers reach targets up to the same depth).
 const reachHorizon = 100.0
 
-// answerReach solves the sample's curve for one target: exact
-// rarefaction at or below the observed depth, the fitted curve above
-// (complexity.Curve). The interval is filled in by the caller.
-func answerReach(r reachSpec, cv complexity.Curve) reachAnswer {
-	a := reachAnswer{spec: r, reads: math.NaN(), lo: math.NaN(), hi: math.NaN()}
-	n := float64(cv.Counts.Reads())
-	if n == 0 {
-		a.note = r.label + ": no reads to solve from"
-		return a
-	}
-	maxT := reachHorizon * n
-	target := r.resolve(cv.Counts.Distinct())
-	var res complexity.Reach
-	var at func(float64) float64
-	switch r.kind {
-	case "distinct":
-		res, at = cv.ReadsForDistinct(target, maxT), cv.Distinct
-	case "dup":
-		res, at = cv.ReadsForDupFraction(target, maxT), cv.DupFraction
-	case "coverage":
-		res, at = cv.ReadsForCoverage(target, maxT), cv.Coverage
-	case "yield":
-		res, at = cv.ReadsForMarginalYield(target, maxT), cv.MarginalYield
-	}
-	if res.Reachable {
-		a.reads = res.Reads
-		return a
-	}
-	v := at(maxT)
-	switch {
-	case math.IsNaN(v):
-		a.note = fmt.Sprintf("%s: no curve beyond the observed depth to solve on", r.label)
-	case r.kind == "distinct":
-		a.note = fmt.Sprintf("%s not reached within %gx (%s reads): the curve gives %s distinct there", r.label, reachHorizon, human(maxT), human(v))
-	default:
-		a.note = fmt.Sprintf("%s not reached within %gx (%s reads): the curve gives %.3g there", r.label, reachHorizon, human(maxT), v)
-	}
-	return a
+// reachKindOf maps a target kind as written to complexity's.
+var reachKindOf = map[string]complexity.TargetKind{
+	"distinct": complexity.TargetDistinct,
+	"dup":      complexity.TargetDup,
+	"coverage": complexity.TargetCoverage,
+	"yield":    complexity.TargetYield,
+}
+
+// target is the complexity target for a sample with distinctNow units.
+func (r reachSpec) target(distinctNow int64) complexity.Target {
+	return complexity.Target{Kind: reachKindOf[r.kind], Value: r.resolve(distinctNow)}
 }

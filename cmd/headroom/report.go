@@ -21,6 +21,7 @@ var reportTemplate string
 
 type reportCell struct {
 	Text  string
+	Sub   string // a second, smaller line (an interval)
 	Class string
 }
 
@@ -53,7 +54,7 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 	// The page shows the columns a person decides by, verdict first, and
 	// fits a 1,300 px page; the TSV/JSON summary has them all.
 	head := []reportHead{{Text: "sample", Left: true}, {Text: "verdict"}, {Text: "reads"}, {Text: "dup now"},
-		{Text: "distinct"}, {Text: "total (interval)"}}
+		{Text: "distinct"}, {Text: "total"}}
 	for _, d := range s.depths {
 		head = append(head, reportHead{Text: "distinct at " + d.label})
 	}
@@ -73,15 +74,14 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 		}
 		row := []reportCell{{Text: e.in.name, Class: "l"}, {Text: v, Class: "v " + verdictClass(r.Verdict)},
 			{Text: human(float64(r.Reads))}, {Text: percent(r.DupFraction)}, {Text: human(float64(r.Distinct))},
-			{Text: withInterval(r.Total, r.TotalLo, r.TotalHi)}}
+			intervalCell(r.Total, r.TotalLo, r.TotalHi)}
 		for _, p := range r.Predictions[:len(s.depths)] {
-			row = append(row, reportCell{Text: withInterval(p.Distinct, p.Lo, p.Hi)})
+			row = append(row, intervalCell(p.Distinct, p.Lo, p.Hi))
 		}
 		for _, a := range e.reach {
-			row = append(row, reportCell{Text: withInterval(a.reads, a.lo, a.hi)})
+			row = append(row, intervalCell(a.reads, a.lo, a.hi))
 		}
-		m, _, _ := strings.Cut(string(r.Method), "; total=")
-		row = append(row, reportCell{Text: m, Class: "l"}, reportCell{Text: pct(r.BacktestError)})
+		row = append(row, reportCell{Text: string(r.Method), Class: "l"}, reportCell{Text: pct(r.BacktestError)})
 		rows = append(rows, row)
 		counts[r.Verdict]++
 		if all := sampleNotes(e); len(all) > 0 {
@@ -154,6 +154,17 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 		return nil, err
 	}
 	return b.Bytes(), nil
+}
+
+// intervalCell shows a value with its interval on a second, smaller line,
+// so that a wide table still fits the page.
+func intervalCell(v, lo, hi float64) reportCell {
+	full := withInterval(v, lo, hi)
+	val, iv, ok := strings.Cut(full, " (")
+	if !ok {
+		return reportCell{Text: full}
+	}
+	return reportCell{Text: val, Sub: strings.TrimSuffix(iv, ")")}
 }
 
 // unitWord names what a command counts, for sentences.
@@ -236,7 +247,7 @@ func planReport(pl *plan) planView {
 		labelW+barW+80, len(pl.rows)*(barH+gap)+gap)
 	for i, r := range pl.rows {
 		v.Rows = append(v.Rows, []reportCell{{Text: r.name, Class: "l"}, {Text: human(float64(r.readsNow))}, {Text: percent(r.shareNow)},
-			{Text: human(float64(r.readsNext))}, {Text: percent(r.poolShare)}, {Text: withInterval(r.distinctAfter, r.lo, r.hi)},
+			{Text: human(float64(r.readsNext))}, {Text: percent(r.poolShare)}, intervalCell(r.distinctAfter, r.lo, r.hi),
 			{Text: "+" + human(r.distinctAfter-float64(r.distinctNow))}, {Text: percent(r.dupAfter)}, {Text: r.action, Class: "l"}})
 		y := gap + i*(barH+gap)
 		w := 0.0

@@ -90,11 +90,7 @@ func summaryCells(e estimated) []cell {
 	for _, x := range e.in.extra {
 		c = append(c, x.value)
 	}
-	m, _, _ := strings.Cut(string(r.Method), "; total=")
-	if strings.HasPrefix(m, "total=") {
-		m = ""
-	}
-	method := optStrCell(m)
+	method := optStrCell(string(r.Method))
 	verdict := nullCell
 	if r.Verdict != complexity.VerdictNone {
 		verdict = strCell(string(r.Verdict))

@@ -157,8 +157,8 @@ func TestTaxaTwins(t *testing.T) {
 	checkTaxaSkbio(t, "Twins.csv", runTaxaJSON(t, "", path), taxaGolden(t, "twins_alpha.tsv"))
 }
 
-// The rarefied richness and coverage the advisor uses (complexity.RarefyMean,
-// complexity.CoverageAt) against scipy's hypergeometric distribution
+// The rarefied richness and coverage the advisor uses (complexity.Curve.Distinct
+// and Coverage) against scipy's hypergeometric distribution
 // (testdata/taxa/scipy_rarefied.tsv).
 func TestTaxaRarefiedMatchesScipy(t *testing.T) {
 	// Both sides sum the same terms in float64; log-gamma differences lose
@@ -194,10 +194,11 @@ func TestTaxaRarefiedMatchesScipy(t *testing.T) {
 			t.Fatal(err)
 		}
 		m := goldenNum(g["depth"])
-		if got, want := complexity.RarefyMean(c, m), goldenNum(g["expected_taxa"]); math.Abs(got-want) > tol*want {
+		cv := complexity.Curve{Counts: c}
+		if got, want := cv.Distinct(m), goldenNum(g["expected_taxa"]); math.Abs(got-want) > tol*want {
 			t.Errorf("%s at %v: expected taxa %v, scipy %v", g["sample"], m, got, want)
 		}
-		if got, want := complexity.CoverageAt(c, m), goldenNum(g["expected_coverage"]); math.Abs(got-want) > tol {
+		if got, want := cv.Coverage(m), goldenNum(g["expected_coverage"]); math.Abs(got-want) > tol {
 			t.Errorf("%s at %v: expected coverage %v, scipy %v", g["sample"], m, got, want)
 		}
 	}
@@ -207,22 +208,23 @@ func TestTaxaRarefiedMatchesScipy(t *testing.T) {
 func TestTaxaReachCoverage(t *testing.T) {
 	c, _ := complexity.FromMap(map[int64]int64{1: 40, 2: 15, 3: 8, 10: 30, 100: 5})
 	n := float64(c.Reads())
+	cv := complexity.Curve{Counts: c}
 	for _, target := range []float64{0.5, 0.9, 0.95, 0.99, 0.999} {
 		spec, err := parseReach(fmt.Sprintf("coverage:%v", target))
 		if err != nil {
 			t.Fatal(err)
 		}
-		m := answerReach(spec, complexity.Curve{Counts: c}).reads
+		m := complexity.Curve{Counts: c}.ReadsFor(spec.target(c.Distinct()), 100*n)
 		if math.IsNaN(m) {
 			t.Fatalf("target %v: NaN", target)
 		}
-		if got := complexity.CoverageAt(c, m); got < target {
+		if got := cv.Coverage(m); got < target {
 			t.Errorf("target %v: coverage at %v = %v, below the target", target, m, got)
 		}
 		// Whole reads, found by bisection to half a read: at most one read
 		// above the least depth that reaches the target.
 		if m > 2 {
-			if got := complexity.CoverageAt(c, m-2); got >= target {
+			if got := cv.Coverage(m - 2); got >= target {
 				t.Errorf("target %v: coverage at %v-2 = %v already reaches it", target, m, got)
 			}
 		}
@@ -230,8 +232,8 @@ func TestTaxaReachCoverage(t *testing.T) {
 		if m > n {
 			a := 39.0 * float64(c.Reads()-1) / (40.0*float64(c.Reads()-1) + 30) * 40 / 39
 			want := 1 - 40/n*math.Pow(a, m-n+1)
-			if math.Abs(complexity.CoverageAt(c, m)-want) > 1e-12 {
-				t.Errorf("target %v: coverage at %v = %v, closed form %v", target, m, complexity.CoverageAt(c, m), want)
+			if math.Abs(cv.Coverage(m)-want) > 1e-12 {
+				t.Errorf("target %v: coverage at %v = %v, closed form %v", target, m, cv.Coverage(m), want)
 			}
 		}
 	}
@@ -263,7 +265,7 @@ func TestTaxaBadInput(t *testing.T) {
 		{"biomfrac", biom(`"matrix_type":"sparse","data":[[0,0,1.5]]`), ":1: column 260: \"1.5\" is not a whole number"},
 		{"biomneg", biom(`"matrix_type":"dense","data":[[1,2],[3,-4]]`), "negative count"},
 		{"biomdup", `{"shape":[1,2],"matrix_type":"dense","rows":[{"id":"T"}],"columns":[{"id":"A"},{"id":"A"}],"data":[[1,2]]}`, "sample ID \"A\" repeated"},
-		{"hdf5", "\x89HDF\r\n\x1a\n\x00\x00\x00binary", ":1: column 1: this is a BIOM 2 file (HDF5)"},
+		{"hdf5", "\x89HDF\r\n\x1a\n\x00\x00\x00binary", ": HDF5: 24 bytes at address 0 lie beyond the end of the file"},
 	}
 	out := writeFile(t, dir, "keep.tsv", "old contents\n")
 	adv := filepath.Join(dir, "advice.tsv")

@@ -13,12 +13,18 @@
 // headroom's intervals and the failures (NaN, error or an inadmissible
 // curve) per estimator, overall and by family, as markdown.
 //
+// It also measures headroom's reach answers (complexity.Options.Reach):
+// for each target kind (distinct, dup, coverage, yield) the target is set
+// to its true value at T = 3N, 10N, 30N (reachTargets), so the true
+// answer is T; the table gives the median and 90th percentile |relative
+// error| of the depth and the coverage of its interval.
+//
 // The grid: 14 families × library sizes S ∈ {1e4, 1e5, 1e6, 1e7} × depth
 // N/S ∈ {0.1, 0.3, 1, 3} (a shallow QC pass sees anywhere from a tenth to a
 // few times the library), one draw each; -quick uses S ≤ 1e6 and N/S ∈
 // {0.3, 1}. Everything is seeded: the same -seed gives the same table.
 // Seed 1 is the reporting set; the interval calibration in
-// complexity/interval.go (ModelErrorKnots) and the choices made in
+// complexity/interval.go (the default model-error knots) and the choices made in
 // complexity/select.go were derived from seed 2 (-seed 2 -calibrate prints
 // the knots), so reported coverage and errors are measured on draws the
 // tuning never saw.
@@ -44,172 +50,20 @@ import (
 	"headroom/internal/sim"
 )
 
-// family generates the relative abundances of S units.
-type family struct {
-	name string
-	gen  func(rng *rand.Rand, S int) []float64
-}
-
-func lognormal(sigma float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := make([]float64, S)
-		for i := range a {
-			a[i] = math.Exp(sigma * rng.NormFloat64())
-		}
-		return a
-	}
-}
-
-func gammaFam(shape float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := make([]float64, S)
-		for i := range a {
-			a[i] = sim.Gamma(rng, shape)
-		}
-		return a
-	}
-}
-
-// pcr: each molecule starts as one copy and is amplified over cycles; in
-// each cycle each copy is duplicated with the molecule's efficiency e ~
-// Uniform(eLo, eHi) (a Galton–Watson branching process). From 30 copies
-// on, the binomial step is replaced by its normal approximation (the
-// early cycles, where the randomness that matters arises, are exact).
-func pcr(cycles int, eLo, eHi float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := make([]float64, S)
-		for i := range a {
-			e := eLo + (eHi-eLo)*rng.Float64()
-			c := 1.0
-			for k := 0; k < cycles; k++ {
-				if c < 30 {
-					n := 0.0
-					for j := 0; j < int(c); j++ {
-						if rng.Float64() < e {
-							n++
-						}
-					}
-					c += n
-				} else {
-					c += math.Max(0, math.Round(c*e+math.Sqrt(c*e*(1-e))*rng.NormFloat64()))
-				}
-			}
-			a[i] = c
-		}
-		return a
-	}
-}
-
-// zipf: p_i ∝ i^(−s) (ranks shuffled do not matter).
-func zipf(s float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := make([]float64, S)
-		for i := range a {
-			a[i] = math.Pow(float64(i+1), -s)
-		}
-		return a
-	}
-}
-
-// jackpot: a lognormal(σ=0.5) library in which a share of the molecules
-// were amplified early and are mult times more abundant.
-func jackpot(share, mult float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := lognormal(0.5)(rng, S)
-		for i := range a {
-			if rng.Float64() < share {
-				a[i] *= mult
-			}
-		}
-		return a
-	}
-}
-
-// twoPop: a share of the units come from a second, rarer population.
-func twoPop(share, rel float64, g1, g2 func(*rand.Rand, int) []float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := g1(rng, S)
-		b := g2(rng, S)
-		for i := range a {
-			if rng.Float64() < share {
-				a[i] = rel * b[i]
-			}
-		}
-		return a
-	}
-}
-
-var families = []family{
-	{"lognormal-0.5", lognormal(0.5)},
-	{"lognormal-1", lognormal(1)},
-	{"lognormal-1.5", lognormal(1.5)},
-	{"lognormal-2", lognormal(2)},
-	{"gamma-0.5", gammaFam(0.5)},
-	{"gamma-1", gammaFam(1)},
-	{"gamma-4", gammaFam(4)},
-	{"pcr-narrow", pcr(10, 0.85, 0.95)},
-	{"pcr-wide", pcr(14, 0.4, 0.95)},
-	{"zipf-0.7", zipf(0.7)},
-	{"zipf-1", zipf(1)},
-	{"jackpot", jackpot(0.005, 200)},
-	{"twopop-gamma", twoPop(0.3, 0.05, gammaFam(2), lognormal(1))},
-	{"twopop-ln", twoPop(0.5, 0.1, lognormal(0.3), lognormal(0.3))},
-}
-
 var multiples = []float64{2, 10, 30, 100}
 
-// poissonRand draws Poisson(lam): inversion below 10, PTRS transformed
-// rejection above (Hörmann 1993, Insurance Math Econ 12:39).
-func poissonRand(rng *rand.Rand, lam float64) int64 {
-	if lam <= 0 {
-		return 0
-	}
-	if lam < 10 {
-		l := math.Exp(-lam)
-		k := int64(0)
-		p := rng.Float64()
-		for p > l {
-			k++
-			p *= rng.Float64()
-		}
-		return k
-	}
-	slam := math.Sqrt(lam)
-	loglam := math.Log(lam)
-	b := 0.931 + 2.53*slam
-	a := -0.059 + 0.02483*b
-	invalpha := 1.1239 + 1.1328/(b-3.4)
-	vr := 0.9277 - 3.6224/(b-2)
-	for {
-		u := rng.Float64() - 0.5
-		v := rng.Float64()
-		us := 0.5 - math.Abs(u)
-		k := math.Floor((2*a/us+b)*u + lam + 0.43)
-		if us >= 0.07 && v <= vr {
-			return int64(k)
-		}
-		if k < 0 || (us < 0.013 && v > us) {
-			continue
-		}
-		lg, _ := math.Lgamma(k + 1)
-		if math.Log(v)+math.Log(invalpha)-math.Log(a/(us*us)+b) <= -lam+k*loglam-lg {
-			return int64(k)
-		}
-	}
-}
-
-// estimator is one row of the table.
+// estimator is one row of the table: a curve fitted by
+// complexity.Baseline under the name fit.
 type estimator struct {
-	name string
-	fit  func(c complexity.Counts, maxT float64) (complexity.Model, error)
+	name, fit string
 }
 
 var baselines = []estimator{
-	{"poisson (Lander–Waterman)", func(c complexity.Counts, _ float64) (complexity.Model, error) { return complexity.FitPoisson(c) }},
-	{"ztnb (full ML)", func(c complexity.Counts, _ float64) (complexity.Model, error) { return complexity.FitZTNB(c) }},
-	{"rfa (textbook)", func(c complexity.Counts, maxT float64) (complexity.Model, error) { return complexity.FitRFA(c, maxT) }},
-	{"shen (Chao1-based)", fitShen},
-	{"lognormal (PLN ML)", func(c complexity.Counts, _ float64) (complexity.Model, error) { return complexity.FitLognormal(c) }},
+	{"poisson (Lander–Waterman)", "poisson"},
+	{"ztnb (full ML)", "ztnb"},
+	{"rfa (textbook)", "rfa"},
+	{"shen (Chao1-based)", "shen"},
+	{"lognormal (PLN ML)", "lognormal"},
 }
 
 const headroomName = "headroom (Analyze)"
@@ -230,6 +84,53 @@ type caseResult struct {
 	truth  [4]float64
 	res    []result // baselines..., headroom
 	secs   float64
+	// reach are headroom's answers to the reach targets of reachTargets,
+	// whose true depth is reachMultiples[k] times the reads; elastic[k]
+	// is the true curve's elasticity T·D'(T)/D(T) there.
+	reach   []complexity.Reached
+	elastic []float64
+}
+
+// reachMultiples are the true depths (multiples of the sample's reads) of
+// the reach targets: each kind's target is set to its true value there.
+var reachMultiples = []float64{3, 10, 30}
+
+var reachKinds = []complexity.TargetKind{complexity.TargetDistinct, complexity.TargetDup, complexity.TargetCoverage, complexity.TargetYield}
+
+// reachTargets returns, for each kind and each reach multiple m (kind
+// major), the target whose true depth is T = m·N for the library p:
+// E[D(T)] = Σ(1 − e^{−T p_i}), the duplicate fraction 1 − E[D(T)]/T, the
+// coverage Σ p_i (1 − e^{−T p_i}) (the chance that the next read is of a
+// unit already seen) and the marginal yield dE[D]/dT = Σ p_i e^{−T p_i};
+// and the elasticity T·D'(T)/D(T) at each multiple: a relative error ε of
+// D near T is a relative error of about ε/elasticity of the depth.
+func reachTargets(p []float64, n float64) (out []complexity.Target, elastic []float64) {
+	for _, k := range reachKinds {
+		for _, m := range reachMultiples {
+			T := m * n
+			var d, cov, y float64
+			for _, q := range p {
+				e := math.Exp(-T * q)
+				d += -math.Expm1(-T * q)
+				cov += q * -math.Expm1(-T*q)
+				y += q * e
+			}
+			if k == reachKinds[0] {
+				elastic = append(elastic, T*y/d)
+			}
+			v := d
+			switch k {
+			case complexity.TargetDup:
+				v = 1 - d/T
+			case complexity.TargetCoverage:
+				v = cov
+			case complexity.TargetYield:
+				v = y
+			}
+			out = append(out, complexity.Target{Kind: k, Value: v})
+		}
+	}
+	return out, elastic
 }
 
 func main() {
@@ -244,8 +145,8 @@ func main() {
 	calibrate := flag.Bool("calibrate", false, "derive the interval model-error knots (use a seed other than the reporting one)")
 	flag.Parse()
 	if *calibrate {
-		complexity.ModelErrorKnots = nil // bootstrap-only intervals
-		complexity.BacktestKnots = nil
+		knots = []complexity.Knot{{M: 1, S: 0}} // bootstrap-only intervals
+		fitKnots = []complexity.Knot{{M: 1, S: 0}}
 	}
 
 	sizes := []int{1e4, 1e5, 1e6, 1e7}
@@ -257,8 +158,8 @@ func main() {
 	start := time.Now()
 	type job struct{ fam, si int }
 	var jobs []job
-	for fi, f := range families {
-		if *famFilter != "" && !strings.Contains(f.name, *famFilter) {
+	for fi, f := range sim.Families {
+		if *famFilter != "" && !strings.Contains(f.Name, *famFilter) {
 			continue
 		}
 		for si := range sizes {
@@ -296,6 +197,7 @@ func main() {
 	fmt.Fprintf(&sb, "Command: `%s -seed %d -boot %d`; %d cases (%d families × S ∈ %v × N/S ∈ %v), %.0f s on %d workers.\n\n",
 		cmd, *seed, *boot, len(all), len(jobs)/len(sizes), sizes, ratios, time.Since(start).Seconds(), *workers)
 	writeTables(&sb, all)
+	writeReach(&sb, all)
 	if *calibrate {
 		writeCalibration(&sb, all)
 	}
@@ -323,6 +225,10 @@ var candNames = []string{"band-h", "powerlaw-h", "lognormal2-h", "lognormal2", "
 
 var showCands bool
 
+// knots and fitKnots are the model-error and backtest-weight knots of
+// headroom's intervals (nil: the calibrated defaults).
+var knots, fitKnots []complexity.Knot
+
 func names() []string {
 	var s []string
 	for _, e := range baselines {
@@ -340,7 +246,7 @@ func names() []string {
 // runPopulation simulates one library and samples it at each depth ratio.
 func runPopulation(seed uint64, fi, S int, ratios []float64, boot int) []caseResult {
 	rng := rand.New(rand.NewPCG(seed, uint64(fi)*1000003+uint64(S)))
-	a := families[fi].gen(rng, S)
+	a := sim.Families[fi].Gen(rng, S)
 	sum := 0.0
 	for _, v := range a {
 		sum += v
@@ -355,7 +261,7 @@ func runPopulation(seed uint64, fi, S int, ratios []float64, boot int) []caseRes
 		srng := rand.New(rand.NewPCG(seed^0xabcdef, uint64(fi)*1000003+uint64(S)*31+uint64(ri)))
 		var b complexity.Builder
 		for _, p := range a {
-			b.AddUnit(poissonRand(srng, N*p))
+			b.AddUnit(sim.Poisson(srng, N*p))
 		}
 		c, err := b.Counts()
 		if err != nil {
@@ -376,19 +282,9 @@ func runPopulation(seed uint64, fi, S int, ratios []float64, boot int) []caseRes
 			cr.res = append(cr.res, runModel(e, c, maxT))
 		}
 		if showCands {
-			ms := map[string]complexity.Model{}
-			for _, m := range complexity.Candidates(c, maxT) {
-				ms[m.Name()] = m
-			}
 			best, bestE := -1, math.Inf(1)
 			for _, n := range candNames {
-				m := ms[n]
-				r := runModel(estimator{n, func(complexity.Counts, float64) (complexity.Model, error) {
-					if m == nil {
-						return nil, fmt.Errorf("no fit")
-					}
-					return m, nil
-				}}, c, maxT)
+				r := runModel(estimator{n, n}, c, maxT)
 				cr.res = append(cr.res, r)
 				if e := relErr(r.pred[1], cr.truth[1]); !r.failed && e < bestE {
 					best, bestE = len(cr.res)-1, e
@@ -399,13 +295,13 @@ func runPopulation(seed uint64, fi, S int, ratios []float64, boot int) []caseRes
 			} else {
 				cr.res = append(cr.res, result{failed: true})
 			}
-			sr := runModel(estimator{"select", func(c complexity.Counts, maxT float64) (complexity.Model, error) {
-				m, _, err := complexity.Extrapolate(c, maxT)
-				return m, err
-			}}, c, maxT)
+			sr := runModel(estimator{"select", "select"}, c, maxT)
 			cr.res = append(cr.res, sr)
 		}
-		cr.res = append(cr.res, runHeadroom(c, boot, seed))
+		targets, elastic := reachTargets(a, float64(c.Reads()))
+		hr, reach := runHeadroom(c, boot, seed, targets)
+		cr.elastic = elastic
+		cr.res, cr.reach = append(cr.res, hr), reach
 		cr.secs = time.Since(t0).Seconds()
 		out = append(out, cr)
 	}
@@ -417,13 +313,13 @@ func runModel(e estimator, c complexity.Counts, maxT float64) result {
 	for k := range r.pred {
 		r.pred[k], r.lo[k], r.hi[k] = math.NaN(), math.NaN(), math.NaN()
 	}
-	m, err := e.fit(c, maxT)
-	if err != nil || m == nil {
+	m, admissible, err := complexity.Baseline(e.fit, c, maxT)
+	if err != nil {
 		r.failed = true
 		return r
 	}
 	r.method = m.Name()
-	if !complexity.Admissible(m, c, maxT) {
+	if !admissible {
 		r.failed = true
 	}
 	for k, mult := range multiples {
@@ -436,15 +332,19 @@ func runModel(e estimator, c complexity.Counts, maxT float64) result {
 	return r
 }
 
-func runHeadroom(c complexity.Counts, boot int, seed uint64) result {
+func runHeadroom(c complexity.Counts, boot int, seed uint64, targets []complexity.Target) (result, []complexity.Reached) {
 	var depths []float64
 	for _, m := range multiples {
 		depths = append(depths, m*float64(c.Reads()))
 	}
-	rep := complexity.Analyze(c, complexity.Options{Depths: depths, Bootstrap: boot, Seed: seed, Threads: 1, Gates: complexity.NoGates()})
+	rep := complexity.Analyze(c, complexity.Options{Depths: depths, Bootstrap: boot, Seed: seed, Threads: 1,
+		Gates: complexity.NoGates(), ModelError: knots, FitError: fitKnots, Reach: targets})
 	var r result
 	r.method = rep.Method
 	r.bt = rep.BacktestError
+	if rep.TotalMethod != "" {
+		r.method += "; total=" + rep.TotalMethod
+	}
 	for k := range multiples {
 		if k >= len(rep.Predictions) {
 			r.failed = true
@@ -456,7 +356,7 @@ func runHeadroom(c complexity.Counts, boot int, seed uint64) result {
 			r.failed = true
 		}
 	}
-	return r
+	return r, rep.Reach
 }
 
 func relErr(pred, truth float64) float64 { return math.Abs(pred/truth - 1) }
@@ -563,7 +463,7 @@ func writeTables(w io.Writer, all []caseResult) {
 		fmt.Fprint(w, "---|")
 	}
 	fmt.Fprintln(w, "---|")
-	for fi, f := range families {
+	for fi, f := range sim.Families {
 		var cs []caseResult
 		for _, cr := range all {
 			if cr.fam == fi {
@@ -573,7 +473,7 @@ func writeTables(w io.Writer, all []caseResult) {
 		if len(cs) == 0 {
 			continue
 		}
-		fmt.Fprintf(w, "| %s |", f.name)
+		fmt.Fprintf(w, "| %s |", f.Name)
 		var hs summary
 		for ei := range ns {
 			s := summarize(cs, ei)
@@ -619,7 +519,7 @@ func writeCSV(w io.Writer, all []caseResult) {
 	fmt.Fprintln(w, ",method,secs,backtest")
 	for _, cr := range all {
 		for k, m := range multiples {
-			fmt.Fprintf(w, "%s,%d,%g,%d,%d,0,%g,%.6g", families[cr.fam].name, cr.S, cr.ratio, cr.n, cr.d, m, cr.truth[k])
+			fmt.Fprintf(w, "%s,%d,%g,%d,%d,0,%g,%.6g", sim.Families[cr.fam].Name, cr.S, cr.ratio, cr.n, cr.d, m, cr.truth[k])
 			for _, r := range cr.res {
 				fmt.Fprintf(w, ",%.6g,%.6g,%.6g", r.pred[k], r.lo[k], r.hi[k])
 			}
@@ -638,7 +538,7 @@ func writeCalibration(w io.Writer, all []caseResult) {
 	const z = 1.959963984540054
 	hi := len(all[0].res) - 1
 	fmt.Fprintln(w)
-	fmt.Fprintln(w, "### Calibration of the interval model-error term (complexity.ModelErrorKnots)")
+	fmt.Fprintln(w, "### Calibration of the interval model-error term (complexity.Options.ModelError; the defaults in complexity/interval.go)")
 	fmt.Fprintln(w)
 	fmt.Fprint(w, "knots: {1, 0}")
 	for k, m := range multiples {
@@ -676,4 +576,55 @@ func writeCalibration(w io.Writer, all []caseResult) {
 		fmt.Fprintf(w, ", {%g, %.3f}", m, b)
 	}
 	fmt.Fprintln(w)
+}
+
+// writeReach writes the accuracy of headroom's reach answers: for each
+// target kind and true depth, the median and 90th percentile of the
+// |relative error| of the depth (a target not reached counts as an
+// infinite error), the coverage of the interval and how many were not
+// reached.
+func writeReach(w io.Writer, all []caseResult) {
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "### Reach: |relative error| of the depth at which a target is reached, median / 90th percentile; interval coverage; not reached")
+	fmt.Fprintln(w)
+	fmt.Fprintf(w, "| target | true depth | median | 90th pct | coverage | not reached | median, elasticity ≥ %g (cases) |\n", wellPosed)
+	fmt.Fprintln(w, "|---|---|---|---|---|---|---|")
+	for ki, k := range reachKinds {
+		for mi, m := range reachMultiples {
+			var errs, posed []float64
+			covered, missed := 0, 0
+			for _, cr := range all {
+				q := cr.reach[ki*len(reachMultiples)+mi]
+				T := m * float64(cr.n)
+				e := math.Inf(1)
+				if !math.IsNaN(q.Reads) {
+					e = relErr(q.Reads, T)
+				} else {
+					missed++
+				}
+				errs = append(errs, e)
+				if cr.elastic[mi] >= wellPosed {
+					posed = append(posed, e)
+				}
+				if q.Lo <= T && T <= q.Hi {
+					covered++
+				}
+			}
+			fmt.Fprintf(w, "| %v | %g× | %s | %s | %s | %d of %d | %s (%d) |\n", k, m, pct(quantileInf(errs, 0.5)), pct(quantileInf(errs, 0.9)),
+				pct(float64(covered)/float64(len(all))), missed, len(all), pct(quantileInf(posed, 0.5)), len(posed))
+		}
+	}
+}
+
+// wellPosed is the elasticity from which a depth is well determined by
+// the curve: 10% more reads add at least 1% distinct units there.
+const wellPosed = 0.1
+
+// quantileInf is quantile where infinite values (failures) stay infinite.
+func quantileInf(v []float64, p float64) float64 {
+	q := quantile(v, p)
+	if math.IsNaN(q) && len(v) > 0 {
+		return math.Inf(1)
+	}
+	return q
 }

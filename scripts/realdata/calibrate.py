@@ -2,6 +2,7 @@
 """Calibrate the adaptive interval of headroom on the calibration data.
 
 Usage:
+  FIT=1 /usr/bin/python3 scripts/realdata/calibrate.py FILE[:BUILD] ...
   /usr/bin/python3 scripts/realdata/calibrate.py SIM.csv REAL.csv [KAPPA ...]
 
 SIM.csv: `go run ./scripts/accuracy -seed 2 -boot 100 -csv SIM.csv` (the
@@ -57,6 +58,14 @@ def adapt(b, m):
     return abs(b)
 
 
+BUILDS = {
+    # knots of the build that wrote a CSV: (ModelErrorKnots, BacktestKnots)
+    "old": (OLD_KNOTS, OLD_BT_KNOTS),  # before the adaptive term (commit 7a33e1a)
+    "none": ([(1, 0)], [(1, 0)]),      # scripts/accuracy -calibrate (bootstrap-only)
+}
+KNOTS = BUILDS["old"]
+
+
 def row(group, name, m, d, pred, lo, truth, b):
     """One calibration cell: (group, name, m, s_boot, e) with e the
     |log| error of the new units; None when unusable."""
@@ -65,7 +74,7 @@ def row(group, name, m, d, pred, lo, truth, b):
         return (group, name, m, 0.0, math.inf, b)
     s = -math.log((lo - d) / delta) / Z
     bb = abs(b) if b is not None and math.isfinite(b) else BT_MISSING
-    sb2 = s * s - knot_interp(OLD_KNOTS, m) ** 2 - (knot_interp(OLD_BT_KNOTS, m) * bb) ** 2
+    sb2 = s * s - knot_interp(KNOTS[0], m) ** 2 - (knot_interp(KNOTS[1], m) * bb) ** 2
     sb = math.sqrt(max(sb2, 0.0))
     e = abs(math.log((truth - d) / delta))
     return (group, name, m, sb, e, b)
@@ -79,8 +88,25 @@ def num(x):
     return v if math.isfinite(v) else None
 
 
+def load_files(args):
+    """args: SIM.csv or REAL.csv, each optionally followed by :old or :none
+    (the knots of the build that wrote it; default old). A file whose
+    header has "family" is simulated, else real (tuning sources only)."""
+    global KNOTS
+    cells = []
+    for a in args:
+        path, _, build = a.partition(":")
+        KNOTS = BUILDS[build or "old"]
+        with open(path) as f:
+            sim = "family" in f.readline()
+        cells += load(path if sim else None, None if sim else path)
+    return cells
+
+
 def load(sim_path, real_path):
     cells = []
+    if sim_path is None:
+        return load_real(real_path, cells)
     with open(sim_path) as f:
         for r in csv.DictReader(f):
             pred, lo = num(r["headroom"]), num(r["headroom_lo"])
@@ -89,6 +115,12 @@ def load(sim_path, real_path):
                 continue
             cells.append(row("sim", r["family"], float(r["mult"]), float(r["distinct"]), pred, lo,
                              float(r["truth"]), num(r["backtest"])))
+    if real_path is None:
+        return cells
+    return load_real(real_path, cells)
+
+
+def load_real(real_path, cells):
     with open(real_path) as f:
         for r in csv.DictReader(f):
             if r["set"] != "tune":
@@ -160,7 +192,7 @@ def report(cells, kappa, knots):
 def main():
     global GROUPS
     if os.environ.get("FIT") == "1":
-        fit_knots(load(sys.argv[1], sys.argv[2]))
+        fit_knots(load_files(sys.argv[1:]))
         return
     if os.environ.get("KNOTS_FROM") == "sim":
         GROUPS = ("sim",)  # knots from the simulated set alone, the weight judged on both
@@ -198,6 +230,9 @@ def per_multiple(cells, kappas):
                   + ", ".join(f"{n} {100 * v:.0f}%" for v, n in worst))
 
 
+REAL_TARGET = float(os.environ.get("REAL_TARGET", "0.95"))
+
+
 def fit_knots(cells, grid=None):
     """The rule used for complexity.ModelErrorKnots and BacktestKnots: for
     each multiple m and weight κ on a grid, the knot s_model(m) is the
@@ -212,6 +247,7 @@ def fit_knots(cells, grid=None):
         sim = [c for c in cs if c[0] == "sim"]
         real = [c for c in cs if c[0] == "real"]
         best = None
+        tried = []
         for k in grid:
             lo, hi = 0.0, 5.0
             for _ in range(50):
@@ -222,18 +258,24 @@ def fit_knots(cells, grid=None):
                     lo = mid
             cs_ = sum(covered(c, hi, k) for c in sim) / len(sim)
             cr = sum(covered(c, hi, k) for c in real) / len(real)
+            tried.append((k, hi, cr, cs_))
             if cs_ > 0.97:
                 continue
             if best is None or cr > best[2] + 1e-12:
                 best = (k, hi, cr, cs_)
-            if cr >= 0.95:
+            if cr >= REAL_TARGET:
                 break
+        if best[2] < REAL_TARGET and len(weight) > 1:
+            # Target out of reach: more weight buys little coverage at a
+            # large cost in width; keep the previous multiple's weight.
+            k = weight[-1][1]
+            best = next(b for b in tried if b[0] == k)
         k, sm, cr, cs_ = best
         print(f"m={m:g}: kappa {k:g}, s_model {sm:.3f}: simulated {100 * cs_:.1f}%, real tuning {100 * cr:.1f}%")
         model.append((m, sm))
         weight.append((m, k))
-    print("ModelErrorKnots = []Knot{" + ", ".join(f"{{{m:g}, {v:.3f}}}" for m, v in model) + "}")
-    print("BacktestKnots = []Knot{" + ", ".join(f"{{{m:g}, {v:g}}}" for m, v in weight) + "}")
+    print("defaultKnots = []Knot{" + ", ".join(f"{{{m:g}, {v:.3f}}}" for m, v in model) + "}")
+    print("defaultFitKnots = []Knot{" + ", ".join(f"{{{m:g}, {v:g}}}" for m, v in weight) + "}")
     return model, weight
 
 

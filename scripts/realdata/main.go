@@ -435,15 +435,9 @@ func runSource(srcs []source, si int, bin string, reps, boot int, seed uint64, m
 // baselines are the accuracy program's textbook estimators (see
 // scripts/accuracy): Lander–Waterman, full ZTNB ML, textbook RFA, Chao1
 // based (Shen et al. 2003); and the grid NPMLE Poisson mixture
-// (complexity.FitNPMLE), a candidate under evaluation. A failed or inadmissible fit is NaN.
+// (complexity.Baseline "npmle"), a candidate under evaluation. A failed or inadmissible fit is NaN.
 func baselines(c complexity.Counts, maxT float64) [nEst - 1][4]float64 {
-	fits := []func() (complexity.Model, error){
-		func() (complexity.Model, error) { return complexity.FitPoisson(c) },
-		func() (complexity.Model, error) { return complexity.FitZTNB(c) },
-		func() (complexity.Model, error) { return complexity.FitRFA(c, maxT) },
-		func() (complexity.Model, error) { return complexity.NewShenModel(c), nil },
-		func() (complexity.Model, error) { return complexity.FitNPMLE(c, maxT) },
-	}
+	fits := []string{"poisson", "ztnb", "rfa", "shen", "npmle"}
 	var out [nEst - 1][4]float64
 	for e, fit := range fits {
 		if e == npmleEst && !withNPMLE {
@@ -452,8 +446,8 @@ func baselines(c complexity.Counts, maxT float64) [nEst - 1][4]float64 {
 			}
 			continue
 		}
-		m, err := fit()
-		ok := err == nil && m != nil && complexity.Admissible(m, c, maxT)
+		m, admissible, err := complexity.Baseline(fit, c, maxT)
+		ok := err == nil && m != nil && admissible
 		for k, mult := range multiples {
 			out[e][k] = math.NaN()
 			if ok {
