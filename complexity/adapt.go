@@ -14,7 +14,15 @@ import "math"
 // log scale (the backtest measured a reach of ln 10):
 //
 //	s_fit(m, b) = κ(m) · |b|,
-//	s² = s_boot² + s_model(m)² + s_fit(m, b)²,
+//	s_lo² = s_boot² + s_model(m)²,  s_hi² = s_lo² + s_fit(m, b)²,
+//	[lo, hi] = D + Δ · [exp(−z·s_lo), exp(z·s_hi)],
+//
+// widening the upper side only: on the real tuning sources nearly every
+// miss of the fixed interval was a truth above it (at 10×, 39 of 40 misses
+// in seeds 2 and 3; at 30× and 100× all 59), real data going on yielding
+// new units after the fitted family has bent over, while on the simulated
+// families misses fall on both sides about equally. (The yield intervals
+// of reach targets, reach.go, add s_fit on both sides.)
 //
 // κ(m) piecewise linear in log m through the knots Options.FitError
 // (default defaultFitKnots; constant beyond the last knot, totals use the
@@ -31,14 +39,17 @@ import "math"
 // weight for which 93% (the middle of the 90–97% band aimed at) of the
 // cells of the real-data tuning sources (scripts/realdata seeds 2 and 3)
 // hold the truth while the simulated coverage stays at most 97%, or, where
-// none reaches it, the one with the highest real coverage under that cap.
+// none reaches it, the previous multiple's weight (more weight bought
+// little coverage there at a large cost in width: at 100×, κ = 25 reached
+// 84% against 76% for κ = 13 in the symmetric version, with median s 1.08
+// against 0.65).
 // defaultKnots (interval.go) and defaultFitKnots come from that one fit. Coverage is
 // reported on draws and sources it never saw (accuracy seed 1, the
 // held-out real sources): BENCHMARKS.md sections 1 and 6.
 
 // defaultFitKnots are the calibrated knots (depth multiple M, weight κ as
 // S) of s_fit (Options.FitError nil).
-var defaultFitKnots = []Knot{{1, 0}, {2, 2}, {10, 5}, {30, 13}, {100, 13}}
+var defaultFitKnots = []Knot{{1, 0}, {2, 5}, {10, 5}, {30, 12}, {100, 12}}
 
 // backtestMissing stands in for |b| when a sample has no backtest.
 const backtestMissing = 0.1

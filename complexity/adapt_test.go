@@ -6,8 +6,8 @@ import (
 )
 
 // TestIntervalFitFormula: with identical replicates (no sampling spread)
-// the adaptive interval is D + Δ·exp(∓z·s), s² = s_model(m)² + (κ(m)·|b|)²
-// (adapt.go); z = 1.959963984540054 is the standard normal 97.5% quantile
+// the adaptive interval is [D + Δ·exp(−z·s_model(m)), D + Δ·exp(z·s)],
+// s² = s_model(m)² + (κ(m)·|b|)² (adapt.go); z = 1.959963984540054 is the standard normal 97.5% quantile
 // (Abramowitz & Stegun 1964, table 26.5). A missing backtest counts as
 // |b| = backtestMissing; b = 0 gives the fixed interval of interval.go.
 func TestIntervalFitFormula(t *testing.T) {
@@ -27,7 +27,7 @@ func TestIntervalFitFormula(t *testing.T) {
 			}
 			s := math.Hypot(sm, k.S*ab)
 			delta := point - d
-			wantLo, wantHi := d+delta*math.Exp(-z*s), math.Min(d+delta*math.Exp(z*s), d+T-n)
+			wantLo, wantHi := d+delta*math.Exp(-z*sm), math.Min(d+delta*math.Exp(z*s), d+T-n)
 			if relDiff(lo, wantLo) > 1e-12 || relDiff(hi, wantHi) > 1e-12 {
 				t.Errorf("m=%g b=%g: [%g, %g], want [%g, %g]", k.M, b, lo, hi, wantLo, wantHi)
 			}

@@ -35,7 +35,7 @@ import (
 // defaultKnots are the calibrated knots of the model-error term
 // (Options.ModelError nil). Reproduced by scripts/realdata/calibrate.py
 // (FIT=1), see adapt.go.
-var defaultKnots = []Knot{{1, 0}, {2, 0}, {10, 0.012}, {30, 0.045}, {100, 0.139}}
+var defaultKnots = []Knot{{1, 0}, {2, 0.009}, {10, 0.052}, {30, 0.090}, {100, 0.175}}
 
 // modelErr returns s_model at multiple m through knots k.
 func modelErr(k []Knot, m float64) float64 {
@@ -64,7 +64,8 @@ func interval(point float64, reps []float64, level float64, c Counts, t float64,
 }
 
 // intervalFit is interval with the adaptive term sfit (adapt.go) added to
-// the model error in quadrature; interval is intervalFit with sfit = 0.
+// the model error in quadrature on the upper side only; interval is
+// intervalFit with sfit = 0.
 func intervalFit(point float64, reps []float64, level float64, c Counts, t float64, knots []Knot, sfit float64) (lo, hi float64) {
 	n, d := float64(c.Reads()), float64(c.Distinct())
 	delta := point - d
@@ -74,8 +75,9 @@ func intervalFit(point float64, reps []float64, level float64, c Counts, t float
 	if !(delta > 0) {
 		return point, point
 	}
-	zs := logSpread(reps, d, level, math.Hypot(modelErr(knots, t/n), sfit))
-	lo, hi = d+delta*math.Exp(-zs), d+delta*math.Exp(zs)
+	me := modelErr(knots, t/n)
+	zlo, zhi := logSpread(reps, d, level, me), logSpread(reps, d, level, math.Hypot(me, sfit))
+	lo, hi = d+delta*math.Exp(-zlo), d+delta*math.Exp(zhi)
 	if isFinite(t) && hi > d+(t-n) {
 		hi = d + (t - n)
 	}

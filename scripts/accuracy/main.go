@@ -47,6 +47,7 @@ import (
 	"time"
 
 	"headroom/complexity"
+	"headroom/internal/benchstat"
 	"headroom/internal/sim"
 )
 
@@ -361,19 +362,7 @@ func runHeadroom(c complexity.Counts, boot int, seed uint64, targets []complexit
 
 func relErr(pred, truth float64) float64 { return math.Abs(pred/truth - 1) }
 
-func quantile(v []float64, p float64) float64 {
-	if len(v) == 0 {
-		return math.NaN()
-	}
-	s := append([]float64(nil), v...)
-	sort.Float64s(s)
-	h := p * float64(len(s)-1)
-	i := int(h)
-	if i >= len(s)-1 {
-		return s[len(s)-1]
-	}
-	return s[i] + (h-float64(i))*(s[i+1]-s[i])
-}
+var quantile = benchstat.Quantile
 
 type summary struct {
 	med, p90 [4]float64
@@ -533,12 +522,15 @@ func writeCSV(w io.Writer, all []caseResult) {
 // for each multiple, the smallest s_model such that 95% of the cases have
 // |log(Δ_true/Δ̂)| ≤ z·sqrt(s_boot² + s_model²), Δ = new units. With the
 // knots set to zero, headroom's lower bound is D + Δ̂·exp(−z·s_boot), which
-// gives s_boot per case.
+// gives s_boot per case. These are the knots without the adaptive term
+// (the simulated set alone); the defaults in use are fitted together with
+// that term by scripts/realdata/calibrate.py from this run's -csv and the
+// real-data benchmark's (complexity/adapt.go).
 func writeCalibration(w io.Writer, all []caseResult) {
 	const z = 1.959963984540054
 	hi := len(all[0].res) - 1
 	fmt.Fprintln(w)
-	fmt.Fprintln(w, "### Calibration of the interval model-error term (complexity.Options.ModelError; the defaults in complexity/interval.go)")
+	fmt.Fprintln(w, "### Model-error knots without the adaptive term (the defaults are fitted with it: scripts/realdata/calibrate.py)")
 	fmt.Fprintln(w)
 	fmt.Fprint(w, "knots: {1, 0}")
 	for k, m := range multiples {

@@ -14,7 +14,8 @@ lo = D + Δ·exp(−z·s), s² = s_boot² + s_old(m)² + (κ_old(m)·|b|)².
 
 The adaptive interval (complexity/adapt.go) is, on the log of the new units,
 
-  s² = s_boot² + s_model(m)² + (κ(m)·|b|)²,
+  s_lo² = s_boot² + s_model(m)², s_hi² = s_lo² + (κ(m)·|b|)²
+  (lower end D + Δ·exp(−z·s_lo), upper end D + Δ·exp(z·s_hi)),
 
 b the sample's self-backtest error (a 10x extrapolation of its own 10%
 thinning). With FIT=1 it prints the knots of complexity.ModelErrorKnots and
@@ -71,12 +72,12 @@ def row(group, name, m, d, pred, lo, truth, b):
     |log| error of the new units; None when unusable."""
     delta = pred - d
     if not (delta > 0 and lo > d and truth > d):
-        return (group, name, m, 0.0, math.inf, b)
+        return (group, name, m, 0.0, math.inf, b)  # a miss whatever the width
     s = -math.log((lo - d) / delta) / Z
     bb = abs(b) if b is not None and math.isfinite(b) else BT_MISSING
     sb2 = s * s - knot_interp(KNOTS[0], m) ** 2 - (knot_interp(KNOTS[1], m) * bb) ** 2
     sb = math.sqrt(max(sb2, 0.0))
-    e = abs(math.log((truth - d) / delta))
+    e = math.log((truth - d) / delta)  # signed: > 0 when the truth is above
     return (group, name, m, sb, e, b)
 
 
@@ -105,37 +106,35 @@ def load_files(args):
 
 def load(sim_path, real_path):
     cells = []
-    if sim_path is None:
-        return load_real(real_path, cells)
-    with open(sim_path) as f:
-        for r in csv.DictReader(f):
-            pred, lo = num(r["headroom"]), num(r["headroom_lo"])
-            if pred is None or lo is None:
-                cells.append(("sim", r["family"], float(r["mult"]), 0.0, math.inf, None))
-                continue
-            cells.append(row("sim", r["family"], float(r["mult"]), float(r["distinct"]), pred, lo,
-                             float(r["truth"]), num(r["backtest"])))
-    if real_path is None:
-        return cells
-    return load_real(real_path, cells)
+    if sim_path is not None:
+        load_csv(sim_path, "sim", "family", "headroom_lo", None, cells)
+    if real_path is not None:
+        load_csv(real_path, "real", "source", "lo", "tune", cells)
+    return cells
 
 
-def load_real(real_path, cells):
-    with open(real_path) as f:
+def load_csv(path, group, name_col, lo_col, only_set, cells):
+    """Append the cells of one CSV (only rows of set only_set, if given)."""
+    with open(path) as f:
         for r in csv.DictReader(f):
-            if r["set"] != "tune":
+            if only_set is not None and r["set"] != only_set:
                 continue
-            pred, lo = num(r["headroom"]), num(r["lo"])
+            pred, lo = num(r["headroom"]), num(r[lo_col])
             if pred is None or lo is None:
-                cells.append(("real", r["source"], float(r["mult"]), 0.0, math.inf, None))
+                cells.append((group, r[name_col], float(r["mult"]), 0.0, math.inf, None))
                 continue
-            cells.append(row("real", r["source"], float(r["mult"]), float(r["distinct"]), pred, lo,
+            cells.append(row(group, r[name_col], float(r["mult"]), float(r["distinct"]), pred, lo,
                              float(r["truth"]), num(r["backtest"])))
     return cells
 
 
 def covered(c, sm, kappa):
+    """The interval holds the truth: below by s_lo² = s_boot² + s_model²,
+    above by s_hi² = s_lo² + s_fit² (the adaptive term widens the upper
+    side only, complexity/adapt.go)."""
     _, _, m, sb, e, b = c
+    if e < 0:
+        return -e <= Z * math.sqrt(sb * sb + sm * sm)
     return e <= Z * math.sqrt(sb * sb + sm * sm + (kappa * adapt(b, m)) ** 2)
 
 

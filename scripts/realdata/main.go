@@ -51,6 +51,7 @@ import (
 	"time"
 
 	"headroom/complexity"
+	"headroom/internal/benchstat"
 )
 
 var (
@@ -465,19 +466,7 @@ func relErr(pred, truth float64) float64 {
 	return math.Abs(pred/truth - 1)
 }
 
-func quantile(v []float64, p float64) float64 {
-	if len(v) == 0 {
-		return math.NaN()
-	}
-	s := append([]float64(nil), v...)
-	sort.Float64s(s)
-	h := p * float64(len(s)-1)
-	i := int(h)
-	if i >= len(s)-1 {
-		return s[len(s)-1]
-	}
-	return s[i] + (h-float64(i))*(s[i+1]-s[i])
-}
+var quantile = benchstat.Quantile
 
 func pct(v float64) string {
 	switch {
