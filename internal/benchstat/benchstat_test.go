@@ -22,3 +22,15 @@ func TestQuantile(t *testing.T) {
 		t.Error("empty input must give NaN")
 	}
 }
+
+// TestPct: the formats of the benchmark tables (common practice).
+func TestPct(t *testing.T) {
+	for _, tc := range []struct {
+		v, whole float64
+		want     string
+	}{{0.0123, 0.1, "1.2%"}, {0.234, 0.1, "23%"}, {0.234, 10, "23.4%"}, {math.NaN(), 10, "–"}, {math.Inf(1), 10, "fail"}} {
+		if got := Pct(tc.v, tc.whole); got != tc.want {
+			t.Errorf("Pct(%g, %g) = %q, want %q", tc.v, tc.whole, got, tc.want)
+		}
+	}
+}

@@ -408,17 +408,7 @@ func summarize(cases []caseResult, ei int) summary {
 	return s
 }
 
-func pct(v float64) string {
-	switch {
-	case math.IsNaN(v):
-		return "–"
-	case math.IsInf(v, 1):
-		return "fail"
-	case v >= 10:
-		return fmt.Sprintf("%.0f%%", 100*v)
-	}
-	return fmt.Sprintf("%.1f%%", 100*v)
-}
+func pct(v float64) string { return benchstat.Pct(v, 10) }
 
 func writeTables(w io.Writer, all []caseResult) {
 	fmt.Fprintln(w, "### Overall: |relative error| of E[D(T)], median / 90th percentile; 95% interval coverage; failures")

@@ -202,6 +202,19 @@ def main():
 
 
 
+def sim_knot(sim, kappa):
+    """The smallest s_model (bisection to 5/2^50) giving 95% coverage of
+    the simulated cells sim at weight kappa."""
+    lo, hi = 0.0, 5.0
+    for _ in range(50):
+        mid = (lo + hi) / 2
+        if sum(covered(c, mid, kappa) for c in sim) / len(sim) >= 0.95:
+            hi = mid
+        else:
+            lo = mid
+    return hi
+
+
 def per_multiple(cells, kappas):
     """For each multiple and weight: the sim-calibrated knot, the coverage
     of the simulated and the real tuning cells, their median widths s."""
@@ -209,15 +222,9 @@ def per_multiple(cells, kappas):
     for m in MULTS:
         cs = [c for c in cells if c[2] == m]
         for k in kappas:
-            lo, hi = 0.0, 5.0
             sim = [c for c in cs if c[0] == "sim"]
             real = [c for c in cs if c[0] == "real"]
-            for _ in range(50):
-                mid = (lo + hi) / 2
-                if sum(covered(c, mid, k) for c in sim) / len(sim) >= 0.95:
-                    hi = mid
-                else:
-                    lo = mid
+            hi = sim_knot(sim, k)
             def w(g):
                 return statistics.median(math.sqrt(c[3] ** 2 + hi ** 2 + (k * adapt(c[5], m)) ** 2) for c in g)
             fam = defaultdict(list)
@@ -248,13 +255,7 @@ def fit_knots(cells, grid=None):
         best = None
         tried = []
         for k in grid:
-            lo, hi = 0.0, 5.0
-            for _ in range(50):
-                mid = (lo + hi) / 2
-                if sum(covered(c, mid, k) for c in sim) / len(sim) >= 0.95:
-                    hi = mid
-                else:
-                    lo = mid
+            hi = sim_knot(sim, k)
             cs_ = sum(covered(c, hi, k) for c in sim) / len(sim)
             cr = sum(covered(c, hi, k) for c in real) / len(real)
             tried.append((k, hi, cr, cs_))

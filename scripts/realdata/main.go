@@ -30,7 +30,11 @@
 //
 // Usage (from the repository root):
 //
-//	go run ./scripts/realdata [-reps 5] [-boot 100] [-seed 1] [-out FILE] [-csv FILE] [-only NAME,...]
+//	go run ./scripts/realdata [-reps 5] [-boot 100] [-seed 1] [-out FILE] [-csv FILE] [-only NAME,...] [-npmle]
+//
+// -npmle adds the grid NPMLE Poisson mixture (complexity.Baseline
+// "npmle"), a candidate evaluated and rejected (BENCHMARKS.md section 6);
+// it takes seconds per fit.
 package main
 
 import (
@@ -468,19 +472,7 @@ func relErr(pred, truth float64) float64 {
 
 var quantile = benchstat.Quantile
 
-func pct(v float64) string {
-	switch {
-	case math.IsNaN(v):
-		return "–"
-	case math.IsInf(v, 1):
-		return "fail"
-	case v >= 10:
-		return fmt.Sprintf("%.0f%%", 100*v)
-	case v >= 0.1:
-		return fmt.Sprintf("%.0f%%", 100*v)
-	}
-	return fmt.Sprintf("%.1f%%", 100*v)
-}
+func pct(v float64) string { return benchstat.Pct(v, 0.1) }
 
 // stats of estimator e over cells at multiple k: median, p90, coverage, n.
 func stats(cells []cell, e, k int) (med, p90, cover float64, n int) {
