@@ -561,6 +561,9 @@ func (r *run) results() ([]Library, error) {
 				name = l.parent + "/" + name
 			}
 		}
+		if res[i].KeyMerged > 0 {
+			l.notes = append(l.notes, fmt.Sprintf("%d read keys one base from a more abundant key were merged into it as its sequencing errors (directional adjacency over the leading bases of the mates)", res[i].KeyMerged))
+		}
 		if res[i].UMIMerged > 0 {
 			l.notes = append(l.notes, fmt.Sprintf("%d UMIs one base from a more abundant UMI at the same position were merged into it as its sequencing errors (directional adjacency, Smith et al. 2017; --umi-errors 0 keeps them apart)", res[i].UMIMerged))
 		}

@@ -55,6 +55,9 @@ type Result struct {
 	// the same position as its sequencing errors (directional; times
 	// 2^Shift).
 	UMIMerged int64
+	// KeyMerged is the number of FASTQ keys merged into a more abundant
+	// key one base away (times 2^Shift).
+	KeyMerged int64
 }
 
 // Counter collapses fragments into molecules.
@@ -78,6 +81,7 @@ type libAcc struct {
 	optical   int64
 	molecules int64
 	umiMerged int64
+	keyMerged int64
 }
 
 func grow(libs []libAcc, lib int) []libAcc {
@@ -96,7 +100,7 @@ func results(libs []libAcc, n int, shift uint) []Result {
 		for t, u := range l.freq {
 			f[t] = u << shift
 		}
-		out[i] = Result{Freq: f, Fragments: l.fragments, OpticalDups: l.optical << shift, Shift: shift, Molecules: l.molecules, UMIMerged: l.umiMerged << shift}
+		out[i] = Result{Freq: f, Fragments: l.fragments, OpticalDups: l.optical << shift, Shift: shift, Molecules: l.molecules, UMIMerged: l.umiMerged << shift, KeyMerged: l.keyMerged << shift}
 	}
 	return out
 }

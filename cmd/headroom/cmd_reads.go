@@ -62,7 +62,7 @@ func runReads(a *app, args []string) error {
 	fs.StringVar(&c.sample, "sample", "", "name the library of records that name none (FASTQ, no read group) `NAME`")
 	fs.IntVar(&c.minMapQ, "min-mapq", 0, "skip alignments with mapping quality below `Q`")
 	fs.Int64Var(&c.optical, "optical-distance", 100, "largest |dx| and |dy| in pixels of optical duplicates (`PX`; 2500 for patterned flow cells; 0 = off)")
-	fs.IntVar(&c.keyBases, "key-bases", 0, "FASTQ: leading bases of each mate in the molecule key (`N`; 0 = whole reads)")
+	fs.IntVar(&c.keyBases, "key-bases", 16, "FASTQ: leading bases of each mate in the molecule key (`N`); up to 28, keys within 2 mismatches merge as sequencing errors; 0 = whole reads, exact")
 	fs.StringVar(&c.mode, "mode", "auto", "counting: auto (window when the header says coordinate-sorted), sorted or hashed")
 	fs.StringVar(&c.maxMemory, "max-memory", "4G", "memory budget of the hash tables (`SIZE`, e.g. 512M, 4G); past it molecules are subsampled by hash")
 	if err := fs.Parse(args); err != nil {
