@@ -62,11 +62,11 @@ func TestCollapseKeys(t *testing.T) {
 	}
 	ms := []umiMol{
 		key(1, a, b, 20),
-		key(1, mut(a, 3), b, 1),         // one error in mate 1
+		key(1, mut(a, 3), b, 1),          // one error in mate 1
 		key(1, mut(a, 15), mut(b, 0), 1), // one in each mate
-		key(1, b, mut(a, 2), 1),         // mates exchanged, one error
-		key(1, mut(a, 1, 5, 9), b, 1),   // three errors: another molecule
-		key(2, mut(a, 3), b, 1),         // another UMI: another molecule
+		key(1, b, mut(a, 2), 1),          // mates exchanged, one error
+		key(1, mut(a, 1, 5, 9), b, 1),    // three errors: another molecule
+		key(2, mut(a, 3), b, 1),          // another UMI: another molecule
 	}
 	l := libAcc{freq: map[int64]int64{}}
 	collapseKeys(ms, &l, 0)
