@@ -25,6 +25,10 @@ type Options struct {
 	By   By
 	Mode Mode
 	Key  reads.KeyOptions
+	// PatternedDistance, when not 0, is the optical distance of the
+	// libraries of an input whose first read name says a patterned flow
+	// cell (reads.Patterned), in place of OpticalDistance (Count).
+	PatternedDistance int64
 	// UMIAsked says the UMI source was chosen by the user, so that its
 	// absence from most records is noted even when no other UMI tag is
 	// there.
@@ -70,6 +74,8 @@ type Counter interface {
 	// SetLeadClip raises the longest leading clip seen, which widens the
 	// window of a sorted counter.
 	SetLeadClip(c int64)
+	// SetDistance sets the optical distance of one library.
+	SetDistance(lib int, d int64)
 	// Results finishes counting and returns one Result per library index
 	// 0..n-1.
 	Results(n int) []Result
@@ -82,6 +88,7 @@ type libAcc struct {
 	molecules int64
 	umiMerged int64
 	keyMerged int64
+	dist      int64 // optical distance of this library when > 0 (SetDistance)
 }
 
 func grow(libs []libAcc, lib int) []libAcc {
@@ -108,6 +115,9 @@ func results(libs []libAcc, n int, shift uint) []Result {
 // count records one finished molecule of n reads with the given spots
 // (reads without a spot are not in spots).
 func (l *libAcc) count(n int64, spots []reads.Spot, dist int64) {
+	if l.dist > 0 {
+		dist = l.dist
+	}
 	times := n
 	if len(spots) > 1 && dist > 0 {
 		times = clusters(spots, dist) + n - int64(len(spots))
@@ -115,6 +125,13 @@ func (l *libAcc) count(n int64, spots []reads.Spot, dist int64) {
 	l.freq[times]++
 	l.optical += n - times
 	l.molecules++
+}
+
+// SetDistance sets the optical distance of library lib, in place of
+// Options.OpticalDistance (a patterned flow cell: reads.Patterned).
+func (s *Sorted) SetDistance(lib int, d int64) {
+	s.libs = grow(s.libs, lib)
+	s.libs[lib].dist = d
 }
 
 // MinSlack is the smallest window margin of the sorted counter, in

@@ -89,6 +89,13 @@ func (h *Hashed) SetLeadClip(int64) {}
 // Advance implements Counter (no-op).
 func (h *Hashed) Advance(int32, int64) {}
 
+// SetDistance sets the optical distance of library lib, in place of
+// Options.OpticalDistance (a patterned flow cell: reads.Patterned).
+func (h *Hashed) SetDistance(lib int, d int64) {
+	h.libs = grow(h.libs, lib)
+	h.libs[lib].dist = d
+}
+
 // Shift returns the current subsampling shift.
 func (h *Hashed) Shift() uint { return h.shift }
 
