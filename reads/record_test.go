@@ -214,7 +214,7 @@ func TestReadNameConventions(t *testing.T) {
 		name string
 		want bool
 	}{
-		{"INV01:12:HVKNWDSXY:2:1101:5005:1000", true},  // NovaSeq-style flow cell ID
+		{"INV01:12:HVKNWDSXY:2:1101:5005:1000", true},   // NovaSeq-style flow cell ID
 		{"INV01:3:H3TCKCCXY:4:1216:12000:3000/1", true}, // HiSeq X-style
 		{"INV01:9:FCE77:1:2471:1200:3000", true},        // 71 tiles in a swath
 		{"INV01:9:FCE77:1:2116:1200:3000", false},       // HiSeq 2500 numbering
