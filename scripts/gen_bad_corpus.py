@@ -356,6 +356,12 @@ case("fq_interleaved_odd", "reads @fq_interleaved_odd.fq", 1, "fq_interleaved_od
 put("fq_cell_tag.fq", fq_pairs(0, 4, 1))
 case("fq_cell_tag", "reads --cell-tag CB @fq_cell_tag.fq", 1, "fq_cell_tag.fq: FASTQ has no cell barcodes: --cell-tag CB",
      "--cell-tag given with FASTQ input")
+put("reads_freq_table.tsv", "sample\ttimes_seen\tunits\nLIB-1\t1\t5210\nLIB-1\t2\t733\n")
+case("reads_freq_table", "reads @reads_freq_table.tsv", 1, "this looks like a frequency table; use headroom counts",
+     "a frequency table (headroom counts input) given to headroom reads")
+put("reads_taxa_table.tsv", "#OTU ID\tPOND-A\tPOND-B\nASV1\t12\t0\nASV2\t3\t8\n")
+case("reads_taxa_table", "reads @reads_taxa_table.tsv", 1, "this looks like a taxon table; use headroom taxa",
+     "a taxon table (headroom taxa input) given to headroom reads")
 case("reads_umi_tag_bad", "reads --umi-tag R! @fq_cell_tag.fq", 2, "--umi-tag: \"R!\" is not a SAM tag name",
      "--umi-tag with a name outside the SAM tag alphabet [A-Za-z][A-Za-z0-9]")
 
