@@ -44,6 +44,7 @@ class Gen:
         self.fastq = []  # (name, r1seq, r2seq)
         self.single = []  # (name, seq)
         self.serial = 0
+        self.no_mc = 0.08  # share of pairs written without MC (older aligners)
 
     def name(self, spot=None):
         self.serial += 1
@@ -182,7 +183,7 @@ class Gen:
         first, second = (b, a) if swap else (a, b)
         first["r1"], second["r1"] = True, False
         fate = r.random()
-        with_mc = r.random() > 0.08
+        with_mc = r.random() > self.no_mc
         for x, y in ((first, second), (second, first)):
             flag = 0x1 | (0x40 if x["r1"] else 0x80)
             if x["rev"]:
