@@ -103,6 +103,8 @@ type library struct {
 	parent  string         // ByCell: a cell row's library
 	cell    string         // ByCell: a cell row's barcode
 	isCell  bool
+	// patterned: the optical distance was set for a patterned flow cell
+	patterned bool
 }
 
 // run is the state of one counting pass over all inputs.
@@ -302,6 +304,7 @@ func (r *run) countAlignments(s *source, allowSorted bool) error {
 	}
 	libOf := r.readGroups(s, h)
 	r.progress(s, 0, false)
+	pat := false
 	var rec reads.Record
 	var n int64
 	lastRef, lastPos := int32(-1), int32(-1)
@@ -318,9 +321,16 @@ func (r *run) countAlignments(s *source, allowSorted bool) error {
 		if n%progressEvery == 0 {
 			r.progress(s, n, false)
 		}
+		if n == 1 {
+			pat = r.patterned(s, rec.Name)
+		}
 		lib := libOf(rec.RG)
 		if r.opt.By == ByCell {
 			lib = r.cellRow(lib, rec.Tag(r.opt.Key.CellTag))
+		}
+		if pat && !r.libs[lib].patterned {
+			r.libs[lib].patterned = true
+			counter.SetDistance(lib, r.opt.PatternedDistance)
 		}
 		r.libs[lib].records++
 		if sortedMode {
@@ -354,6 +364,20 @@ func (r *run) countAlignments(s *source, allowSorted bool) error {
 		r.note("%d fragments had a leading clip longer than the sorted window allowed; up to that many molecules may be counted twice (use --mode hashed for exact counts)", r.sorted.Late)
 	}
 	return nil
+}
+
+// patterned reports whether the optical distance of input s is the
+// patterned one, from its first read name, and says so in a note.
+func (r *run) patterned(s *source, name []byte) bool {
+	if r.opt.PatternedDistance <= 0 || r.opt.OpticalDistance <= 0 {
+		return false
+	}
+	p, fc, tile := reads.Patterned(name)
+	if p {
+		r.note("%s: read names say a patterned flow cell (flow cell %s, tile %s): optical duplicates within %d px, not %d (--optical-distance sets the distance)",
+			s.Name, fc, tile, r.opt.PatternedDistance, r.opt.OpticalDistance)
+	}
+	return p
 }
 
 // readGroups returns the library index of a record's read group, each
@@ -471,6 +495,10 @@ func (r *run) countFASTQs(fastqs []*source) error {
 func (r *run) countFASTQ(s1, s2 *source, interleaved bool) error {
 	lib := r.library(s1.sample())
 	L := r.libs[lib]
+	if r.patterned(s1, []byte(s1.first)) && !L.patterned {
+		L.patterned = true
+		r.hash.SetDistance(lib, r.opt.PatternedDistance)
+	}
 	r.progress(s1, 0, false)
 	var rec1, rec2 reads.FASTQRecord
 	var pr *reads.PairReader
@@ -560,6 +588,9 @@ func (r *run) results() ([]Library, error) {
 			if len(parents) > 1 {
 				name = l.parent + "/" + name
 			}
+		}
+		if res[i].KeyMerged > 0 {
+			l.notes = append(l.notes, fmt.Sprintf("%d read keys one base from a more abundant key were merged into it as its sequencing errors (directional adjacency over the leading bases of the mates)", res[i].KeyMerged))
 		}
 		if res[i].UMIMerged > 0 {
 			l.notes = append(l.notes, fmt.Sprintf("%d UMIs one base from a more abundant UMI at the same position were merged into it as its sequencing errors (directional adjacency, Smith et al. 2017; --umi-errors 0 keeps them apart)", res[i].UMIMerged))

@@ -59,8 +59,8 @@ func runReads(a *app, args []string) error {
 	fs.IntVar(&c.umiErrors, "umi-errors", 1, "merge UMIs within `N` mismatch of a more abundant UMI at the same position (directional adjacency); 0 = off")
 	fs.StringVar(&c.sample, "sample", "", "name the library of records that name none (FASTQ, no read group) `NAME`")
 	fs.IntVar(&c.minMapQ, "min-mapq", 0, "skip alignments with mapping quality below `Q`")
-	fs.Int64Var(&c.optical, "optical-distance", 100, "largest |dx| and |dy| in pixels of optical duplicates (`PX`; 2500 for patterned flow cells; 0 = off)")
-	fs.IntVar(&c.keyBases, "key-bases", 0, "FASTQ: leading bases of each mate in the molecule key (`N`; 0 = whole reads)")
+	fs.Int64Var(&c.optical, "optical-distance", 100, "largest |dx| and |dy| in pixels of optical duplicates (`PX`; 0 = off); unless given, 2500 for patterned flow cells, detected from read names")
+	fs.IntVar(&c.keyBases, "key-bases", 16, "FASTQ: leading bases of each mate in the molecule key (`N`); up to 28, keys within 2 mismatches merge as sequencing errors; 0 = whole reads, exact")
 	run := cmd.flags(groupRun)
 	run.StringVar(&c.mode, "mode", "auto", "counting: auto (window when the header says coordinate-sorted), sorted or hashed")
 	run.StringVar(&c.maxMemory, "max-memory", "4G", "memory budget of the hash tables (`SIZE`, e.g. 512M, 4G); past it molecules are subsampled by hash")
@@ -117,14 +117,15 @@ func runReads(a *app, args []string) error {
 		return err
 	}
 	opt := dedup.Options{
-		OpticalDistance: c.optical,
-		MemoryBudget:    mem,
-		BudgetName:      "--max-memory " + c.maxMemory,
-		By:              by,
-		Mode:            map[string]dedup.Mode{"auto": dedup.ModeAuto, "sorted": dedup.ModeSorted, "hashed": dedup.ModeHashed}[c.mode],
-		Key:             key,
-		UMIAsked:        cmd.changed("umi-tag"),
-		Threads:         s.threads,
+		OpticalDistance:   c.optical,
+		MemoryBudget:      mem,
+		BudgetName:        "--max-memory " + c.maxMemory,
+		By:                by,
+		Mode:              map[string]dedup.Mode{"auto": dedup.ModeAuto, "sorted": dedup.ModeSorted, "hashed": dedup.ModeHashed}[c.mode],
+		Key:               key,
+		UMIAsked:          cmd.changed("umi-tag"),
+		PatternedDistance: map[bool]int64{false: 2500, true: 0}[cmd.changed("optical-distance")],
+		Threads:           s.threads,
 	}
 	in, err := a.readsInputs(&c, s.showProgress(a), &opt)
 	defer in.close()
