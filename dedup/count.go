@@ -6,6 +6,7 @@ import (
 	"io"
 	"path/filepath"
 	"runtime/debug"
+	"sort"
 	"strings"
 
 	"headroom/complexity"
@@ -55,6 +56,11 @@ type Library struct {
 	Counts complexity.Counts
 	// Records read (both mates of a FASTQ pair).
 	Records int64
+	// Sequenced is the reads the run delivered for the library: primary
+	// records with a pair counted once (read pairs for paired data), one
+	// per FASTQ record or mate pair; unmapped and QC-failed reads are in
+	// it, secondary and supplementary alignments are not.
+	Sequenced int64
 	// UsedFragments is the fragments counted, before optical collapse.
 	UsedFragments int64
 	// OpticalDups is the reads removed as optical duplicates.
@@ -98,22 +104,30 @@ func Count(inputs []Input, opt Options) ([]Library, error) {
 type library struct {
 	name    string
 	records int64
-	notes   []string
-	cells   map[string]int // ByCell: the row of each cell of this library
-	parent  string         // ByCell: a cell row's library
-	cell    string         // ByCell: a cell row's barcode
-	isCell  bool
+	// sequenced counts reads as a run delivers them: primary records,
+	// a pair once (its read 1, or an unpaired record); FASTQ: one per
+	// record or pair.
+	sequenced int64
+	notes     []string
+	cells     map[string]int // ByCell: the row of each cell of this library
+	parent    string         // ByCell: a cell row's library
+	cell      string         // ByCell: a cell row's barcode
+	isCell    bool
 	// patterned: the optical distance was set for a patterned flow cell
 	patterned bool
 }
 
 // run is the state of one counting pass over all inputs.
 type run struct {
-	opt     Options
-	rewind  bool // every input can be reopened
-	hashed  bool // counting by hashing after a sorted pass found disorder
-	libs    []*library
-	libIdx  map[string]int
+	opt    Options
+	rewind bool // every input can be reopened
+	hashed bool // counting by hashing after a sorted pass found disorder
+	libs   []*library
+	libIdx map[string]int
+	// rank orders the libraries the way the headers declare their read
+	// groups (first input first); libraries no header names follow in
+	// the order first seen.
+	rank    map[string]int
 	notes   []string
 	noteSet map[string]bool
 	sorted  *Sorted
@@ -333,6 +347,9 @@ func (r *run) countAlignments(s *source, allowSorted bool) error {
 			counter.SetDistance(lib, r.opt.PatternedDistance)
 		}
 		r.libs[lib].records++
+		if f := rec.Flags; f&(reads.FlagSecondary|reads.FlagSupplementary) == 0 && (f&reads.FlagPaired == 0 || f&reads.FlagRead2 == 0) {
+			r.libs[lib].sequenced++
+		}
 		if sortedMode {
 			if rec.Ref < 0 {
 				tail = true
@@ -383,6 +400,20 @@ func (r *run) patterned(s *source, name []byte) bool {
 // readGroups returns the library index of a record's read group, each
 // group resolved once.
 func (r *run) readGroups(s *source, h *reads.Header) func(rg []byte) int {
+	if r.opt.By != ByFile {
+		if r.rank == nil {
+			r.rank = map[string]int{}
+		}
+		for _, id := range h.ReadGroups {
+			n := id
+			if lb := h.Library[id]; r.opt.By != ByReadGroup && lb != "" {
+				n = lb
+			}
+			if _, ok := r.rank[n]; !ok {
+				r.rank[n] = len(r.rank)
+			}
+		}
+	}
 	rgLib := map[string]int{}
 	noRG := -1
 	return func(rg []byte) int {
@@ -521,6 +552,7 @@ func (r *run) countFASTQ(s1, s2 *source, interleaved bool) error {
 			}
 			f = r.keyer.FASTQ(&rec1, &rec2, lib)
 			L.records += 2
+			L.sequenced++
 		} else {
 			err := s1.fq.Read(&rec1)
 			if err == io.EOF {
@@ -531,6 +563,7 @@ func (r *run) countFASTQ(s1, s2 *source, interleaved bool) error {
 			}
 			f = r.keyer.FASTQ(&rec1, nil, lib)
 			L.records++
+			L.sequenced++
 		}
 		r.hash.Add(f)
 		pairs++
@@ -575,6 +608,7 @@ func (r *run) results() ([]Library, error) {
 		}
 	}
 	out := make([]Library, 0, n)
+	var order []int // header rank, then first seen, of each row of out
 	for i, l := range r.libs {
 		if r.opt.By == ByCell && !l.isCell {
 			continue // a library whose records all went to its cells
@@ -599,16 +633,37 @@ func (r *run) results() ([]Library, error) {
 		if err != nil {
 			return nil, &reads.FileError{File: name, Err: fmt.Errorf("frequency counts: %w", err)}
 		}
+		key := len(r.rank) + i
+		lib := l.name
+		if l.isCell {
+			lib = l.parent
+		}
+		if k, ok := r.rank[lib]; ok {
+			key = k
+		}
+		order = append(order, key)
 		out = append(out, Library{
 			Name:          name,
 			Counts:        counts,
+			Sequenced:     l.sequenced,
 			Records:       l.records,
 			UsedFragments: res[i].Fragments,
 			OpticalDups:   res[i].OpticalDups,
 			Notes:         append(append([]string(nil), notes...), l.notes...),
 		})
 	}
-	return out, nil
+	// Input order: the headers' read-group order, then first seen (cells
+	// of one library stay in the order first seen).
+	idx := make([]int, len(out))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return order[idx[a]] < order[idx[b]] })
+	sortedOut := make([]Library, len(out))
+	for k, i := range idx {
+		sortedOut[k] = out[i]
+	}
+	return sortedOut, nil
 }
 
 // tagNotes says when the UMI or cell tag is absent from most fragments:

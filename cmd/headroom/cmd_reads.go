@@ -146,7 +146,8 @@ func runReads(a *app, args []string) error {
 				{key: "used_fragments", value: intCell(l.UsedFragments)},
 				{key: "optical_dups", value: intCell(l.OpticalDups)},
 			},
-			notes: l.Notes,
+			notes:     l.Notes,
+			sequenced: l.Sequenced,
 		}
 	}
 	return a.estimateAndWrite(s, runInfo{command: "reads", inputs: c.inputs}, samples)
