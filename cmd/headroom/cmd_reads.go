@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -188,20 +189,8 @@ func readsKeyOptions(c *readsConfig) (reads.KeyOptions, error) {
 
 // readsParseSize reads 512M, 4G, 1e9, 1048576 (bytes; k, M, G, T are powers of 1024).
 func readsParseSize(s string) (int64, error) {
-	t := strings.TrimSpace(s)
-	mult := 1.0
-	if n := len(t); n > 0 {
-		switch t[n-1] {
-		case 'k', 'K':
-			mult, t = 1<<10, t[:n-1]
-		case 'm', 'M':
-			mult, t = 1<<20, t[:n-1]
-		case 'g', 'G':
-			mult, t = 1<<30, t[:n-1]
-		case 't', 'T':
-			mult, t = 1<<40, t[:n-1]
-		}
-	}
+	t, p := splitSuffix(strings.TrimSpace(s))
+	mult := math.Pow(1024, float64(p))
 	v, err := strconv.ParseFloat(t, 64)
 	if err != nil || !(v > 0) || v*mult > 1<<62 {
 		return 0, fmt.Errorf("%q is not a size such as 512M or 4G", s)
@@ -332,24 +321,11 @@ func (c *readsCountingReader) Read(p []byte) (int, error) {
 // readsInputErr turns a counting error into "FILE:LINE: ..." or
 // "FILE: record N: ...", without the package prefixes of the readers.
 func readsInputErr(err error) error {
-	clean := func(err error) string {
-		s := strings.ReplaceAll(err.Error(), "reads: ", "")
-		return strings.ReplaceAll(s, "dedup: ", "")
-	}
 	var fe *reads.FileError
 	if !errors.As(err, &fe) {
-		return inputf("", 0, "%s", clean(err))
+		return inputf("", 0, "%s", stripPackage(err.Error()))
 	}
-	var pe *reads.ParseError
-	if errors.As(fe.Err, &pe) {
-		if pe.Line > 0 {
-			return inputf(fe.File, pe.Line, "%s", clean(pe.Err))
-		}
-		if pe.Record > 0 {
-			return inputf(fe.File, 0, "record %d: %s", pe.Record, clean(pe.Err))
-		}
-	}
-	return inputf(fe.File, 0, "%s", clean(fe.Err))
+	return inputError(fe.File, fe.Err)
 }
 
 func readsDisplayName(path string) string {
