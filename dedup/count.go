@@ -6,6 +6,7 @@ import (
 	"io"
 	"path/filepath"
 	"runtime/debug"
+	"sort"
 	"strings"
 
 	"headroom/complexity"
@@ -55,6 +56,11 @@ type Library struct {
 	Counts complexity.Counts
 	// Records read (both mates of a FASTQ pair).
 	Records int64
+	// Sequenced is the reads the run delivered for the library: primary
+	// records with a pair counted once (read pairs for paired data), one
+	// per FASTQ record or mate pair; unmapped and QC-failed reads are in
+	// it, secondary and supplementary alignments are not.
+	Sequenced int64
 	// UsedFragments is the fragments counted, before optical collapse.
 	UsedFragments int64
 	// OpticalDups is the reads removed as optical duplicates.
@@ -98,20 +104,30 @@ func Count(inputs []Input, opt Options) ([]Library, error) {
 type library struct {
 	name    string
 	records int64
-	notes   []string
-	cells   map[string]int // ByCell: the row of each cell of this library
-	parent  string         // ByCell: a cell row's library
-	cell    string         // ByCell: a cell row's barcode
-	isCell  bool
+	// sequenced counts reads as a run delivers them: primary records,
+	// a pair once (its read 1, or an unpaired record); FASTQ: one per
+	// record or pair.
+	sequenced int64
+	notes     []string
+	cells     map[string]int // ByCell: the row of each cell of this library
+	parent    string         // ByCell: a cell row's library
+	cell      string         // ByCell: a cell row's barcode
+	isCell    bool
+	// patterned: the optical distance was set for a patterned flow cell
+	patterned bool
 }
 
 // run is the state of one counting pass over all inputs.
 type run struct {
-	opt     Options
-	rewind  bool // every input can be reopened
-	hashed  bool // counting by hashing after a sorted pass found disorder
-	libs    []*library
-	libIdx  map[string]int
+	opt    Options
+	rewind bool // every input can be reopened
+	hashed bool // counting by hashing after a sorted pass found disorder
+	libs   []*library
+	libIdx map[string]int
+	// rank orders the libraries the way the headers declare their read
+	// groups (first input first); libraries no header names follow in
+	// the order first seen.
+	rank    map[string]int
 	notes   []string
 	noteSet map[string]bool
 	sorted  *Sorted
@@ -302,6 +318,7 @@ func (r *run) countAlignments(s *source, allowSorted bool) error {
 	}
 	libOf := r.readGroups(s, h)
 	r.progress(s, 0, false)
+	pat := false
 	var rec reads.Record
 	var n int64
 	lastRef, lastPos := int32(-1), int32(-1)
@@ -318,11 +335,21 @@ func (r *run) countAlignments(s *source, allowSorted bool) error {
 		if n%progressEvery == 0 {
 			r.progress(s, n, false)
 		}
+		if n == 1 {
+			pat = r.patterned(s, rec.Name)
+		}
 		lib := libOf(rec.RG)
 		if r.opt.By == ByCell {
 			lib = r.cellRow(lib, rec.Tag(r.opt.Key.CellTag))
 		}
+		if pat && !r.libs[lib].patterned {
+			r.libs[lib].patterned = true
+			counter.SetDistance(lib, r.opt.PatternedDistance)
+		}
 		r.libs[lib].records++
+		if f := rec.Flags; f&(reads.FlagSecondary|reads.FlagSupplementary) == 0 && (f&reads.FlagPaired == 0 || f&reads.FlagRead2 == 0) {
+			r.libs[lib].sequenced++
+		}
 		if sortedMode {
 			if rec.Ref < 0 {
 				tail = true
@@ -356,9 +383,37 @@ func (r *run) countAlignments(s *source, allowSorted bool) error {
 	return nil
 }
 
+// patterned reports whether the optical distance of input s is the
+// patterned one, from its first read name, and says so in a note.
+func (r *run) patterned(s *source, name []byte) bool {
+	if r.opt.PatternedDistance <= 0 || r.opt.OpticalDistance <= 0 {
+		return false
+	}
+	p, fc, tile := reads.Patterned(name)
+	if p {
+		r.note("%s: read names say a patterned flow cell (flow cell %s, tile %s): optical duplicates within %d px, not %d (--optical-distance sets the distance)",
+			s.Name, fc, tile, r.opt.PatternedDistance, r.opt.OpticalDistance)
+	}
+	return p
+}
+
 // readGroups returns the library index of a record's read group, each
 // group resolved once.
 func (r *run) readGroups(s *source, h *reads.Header) func(rg []byte) int {
+	if r.opt.By != ByFile {
+		if r.rank == nil {
+			r.rank = map[string]int{}
+		}
+		for _, id := range h.ReadGroups {
+			n := id
+			if lb := h.Library[id]; r.opt.By != ByReadGroup && lb != "" {
+				n = lb
+			}
+			if _, ok := r.rank[n]; !ok {
+				r.rank[n] = len(r.rank)
+			}
+		}
+	}
 	rgLib := map[string]int{}
 	noRG := -1
 	return func(rg []byte) int {
@@ -471,6 +526,10 @@ func (r *run) countFASTQs(fastqs []*source) error {
 func (r *run) countFASTQ(s1, s2 *source, interleaved bool) error {
 	lib := r.library(s1.sample())
 	L := r.libs[lib]
+	if r.patterned(s1, []byte(s1.first)) && !L.patterned {
+		L.patterned = true
+		r.hash.SetDistance(lib, r.opt.PatternedDistance)
+	}
 	r.progress(s1, 0, false)
 	var rec1, rec2 reads.FASTQRecord
 	var pr *reads.PairReader
@@ -493,6 +552,7 @@ func (r *run) countFASTQ(s1, s2 *source, interleaved bool) error {
 			}
 			f = r.keyer.FASTQ(&rec1, &rec2, lib)
 			L.records += 2
+			L.sequenced++
 		} else {
 			err := s1.fq.Read(&rec1)
 			if err == io.EOF {
@@ -503,6 +563,7 @@ func (r *run) countFASTQ(s1, s2 *source, interleaved bool) error {
 			}
 			f = r.keyer.FASTQ(&rec1, nil, lib)
 			L.records++
+			L.sequenced++
 		}
 		r.hash.Add(f)
 		pairs++
@@ -547,6 +608,7 @@ func (r *run) results() ([]Library, error) {
 		}
 	}
 	out := make([]Library, 0, n)
+	var order []int // header rank, then first seen, of each row of out
 	for i, l := range r.libs {
 		if r.opt.By == ByCell && !l.isCell {
 			continue // a library whose records all went to its cells
@@ -561,6 +623,9 @@ func (r *run) results() ([]Library, error) {
 				name = l.parent + "/" + name
 			}
 		}
+		if res[i].KeyMerged > 0 {
+			l.notes = append(l.notes, fmt.Sprintf("%d read keys one base from a more abundant key were merged into it as its sequencing errors (directional adjacency over the leading bases of the mates)", res[i].KeyMerged))
+		}
 		if res[i].UMIMerged > 0 {
 			l.notes = append(l.notes, fmt.Sprintf("%d UMIs one base from a more abundant UMI at the same position were merged into it as its sequencing errors (directional adjacency, Smith et al. 2017; --umi-errors 0 keeps them apart)", res[i].UMIMerged))
 		}
@@ -568,16 +633,37 @@ func (r *run) results() ([]Library, error) {
 		if err != nil {
 			return nil, &reads.FileError{File: name, Err: fmt.Errorf("frequency counts: %w", err)}
 		}
+		key := len(r.rank) + i
+		lib := l.name
+		if l.isCell {
+			lib = l.parent
+		}
+		if k, ok := r.rank[lib]; ok {
+			key = k
+		}
+		order = append(order, key)
 		out = append(out, Library{
 			Name:          name,
 			Counts:        counts,
+			Sequenced:     l.sequenced,
 			Records:       l.records,
 			UsedFragments: res[i].Fragments,
 			OpticalDups:   res[i].OpticalDups,
 			Notes:         append(append([]string(nil), notes...), l.notes...),
 		})
 	}
-	return out, nil
+	// Input order: the headers' read-group order, then first seen (cells
+	// of one library stay in the order first seen).
+	idx := make([]int, len(out))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return order[idx[a]] < order[idx[b]] })
+	sortedOut := make([]Library, len(out))
+	for k, i := range idx {
+		sortedOut[k] = out[i]
+	}
+	return sortedOut, nil
 }
 
 // tagNotes says when the UMI or cell tag is absent from most fragments:

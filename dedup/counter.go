@@ -25,6 +25,10 @@ type Options struct {
 	By   By
 	Mode Mode
 	Key  reads.KeyOptions
+	// PatternedDistance, when not 0, is the optical distance of the
+	// libraries of an input whose first read name says a patterned flow
+	// cell (reads.Patterned), in place of OpticalDistance (Count).
+	PatternedDistance int64
 	// UMIAsked says the UMI source was chosen by the user, so that its
 	// absence from most records is noted even when no other UMI tag is
 	// there.
@@ -55,6 +59,9 @@ type Result struct {
 	// the same position as its sequencing errors (directional; times
 	// 2^Shift).
 	UMIMerged int64
+	// KeyMerged is the number of FASTQ keys merged into a more abundant
+	// key one base away (times 2^Shift).
+	KeyMerged int64
 }
 
 // Counter collapses fragments into molecules.
@@ -67,6 +74,8 @@ type Counter interface {
 	// SetLeadClip raises the longest leading clip seen, which widens the
 	// window of a sorted counter.
 	SetLeadClip(c int64)
+	// SetDistance sets the optical distance of one library.
+	SetDistance(lib int, d int64)
 	// Results finishes counting and returns one Result per library index
 	// 0..n-1.
 	Results(n int) []Result
@@ -78,6 +87,8 @@ type libAcc struct {
 	optical   int64
 	molecules int64
 	umiMerged int64
+	keyMerged int64
+	dist      int64 // optical distance of this library when > 0 (SetDistance)
 }
 
 func grow(libs []libAcc, lib int) []libAcc {
@@ -96,7 +107,7 @@ func results(libs []libAcc, n int, shift uint) []Result {
 		for t, u := range l.freq {
 			f[t] = u << shift
 		}
-		out[i] = Result{Freq: f, Fragments: l.fragments, OpticalDups: l.optical << shift, Shift: shift, Molecules: l.molecules, UMIMerged: l.umiMerged << shift}
+		out[i] = Result{Freq: f, Fragments: l.fragments, OpticalDups: l.optical << shift, Shift: shift, Molecules: l.molecules, UMIMerged: l.umiMerged << shift, KeyMerged: l.keyMerged << shift}
 	}
 	return out
 }
@@ -104,6 +115,9 @@ func results(libs []libAcc, n int, shift uint) []Result {
 // count records one finished molecule of n reads with the given spots
 // (reads without a spot are not in spots).
 func (l *libAcc) count(n int64, spots []reads.Spot, dist int64) {
+	if l.dist > 0 {
+		dist = l.dist
+	}
 	times := n
 	if len(spots) > 1 && dist > 0 {
 		times = clusters(spots, dist) + n - int64(len(spots))
@@ -111,6 +125,13 @@ func (l *libAcc) count(n int64, spots []reads.Spot, dist int64) {
 	l.freq[times]++
 	l.optical += n - times
 	l.molecules++
+}
+
+// SetDistance sets the optical distance of library lib, in place of
+// Options.OpticalDistance (a patterned flow cell: reads.Patterned).
+func (s *Sorted) SetDistance(lib int, d int64) {
+	s.libs = grow(s.libs, lib)
+	s.libs[lib].dist = d
 }
 
 // MinSlack is the smallest window margin of the sorted counter, in

@@ -34,6 +34,7 @@ type table struct {
 	segs  [segments]segment
 	spots bool
 	umis  bool // segments hold each molecule's UMI group and UMI
+	seqs  bool // segments hold each FASTQ molecule's Class, SeqA and SeqB
 	over  map[uint64]int64
 	more  [][]keySpot
 	extra int64 // estimated bytes of over and more
@@ -57,6 +58,9 @@ type segment struct {
 	spot []reads.Spot
 	grp  []uint64 // Fragment.Group, when the table has umis
 	umi  []uint64 // Fragment.UMI, likewise
+	cls  []uint64 // Fragment.Class, when the table has seqs
+	sa   []uint64 // Fragment.SeqA, likewise
+	sb   []uint64 // Fragment.SeqB, likewise
 	used int
 }
 
@@ -85,6 +89,13 @@ func (h *Hashed) SetLeadClip(int64) {}
 // Advance implements Counter (no-op).
 func (h *Hashed) Advance(int32, int64) {}
 
+// SetDistance sets the optical distance of library lib, in place of
+// Options.OpticalDistance (a patterned flow cell: reads.Patterned).
+func (h *Hashed) SetDistance(lib int, d int64) {
+	h.libs = grow(h.libs, lib)
+	h.libs[lib].dist = d
+}
+
 // Shift returns the current subsampling shift.
 func (h *Hashed) Shift() uint { return h.shift }
 
@@ -104,6 +115,9 @@ func (t *table) slotBytes() int64 {
 	}
 	if t.umis {
 		b += 16
+	}
+	if t.seqs {
+		b += 24
 	}
 	return b
 }
@@ -147,6 +161,15 @@ func (h *Hashed) Add(f reads.Fragment) {
 		}
 		h.bytes += t.size()
 	}
+	if f.SeqA != 0 && !t.seqs {
+		h.bytes -= t.size()
+		t.seqs = true
+		for i := range t.segs {
+			n := len(t.segs[i].keys)
+			t.segs[i].cls, t.segs[i].sa, t.segs[i].sb = make([]uint64, n), make([]uint64, n), make([]uint64, n)
+		}
+		h.bytes += t.size()
+	}
 	if f.Group != 0 && !t.umis {
 		h.bytes -= t.size()
 		t.umis = true
@@ -177,6 +200,9 @@ func (h *Hashed) Add(f reads.Fragment) {
 	}
 	if sg.grp != nil {
 		sg.grp[i], sg.umi[i] = f.Group, f.UMI
+	}
+	if sg.cls != nil {
+		sg.cls[i], sg.sa[i], sg.sb[i] = f.Class, f.SeqA, f.SeqB
 	}
 	sg.used++
 	if sg.used*maxLoadDen > len(sg.keys)*maxLoadNum {
@@ -233,7 +259,7 @@ func (h *Hashed) makeRoom(t *table, sg *segment) {
 // molecules the current shift no longer keeps.
 func (h *Hashed) rehash(t *table, sg *segment, slots int) {
 	old := int64(len(sg.keys)) * t.slotBytes()
-	keys, cnt, spot, grp, umi := sg.keys, sg.cnt, sg.spot, sg.grp, sg.umi
+	keys, cnt, spot, grp, umi, cls, sa, sb := sg.keys, sg.cnt, sg.spot, sg.grp, sg.umi, sg.cls, sg.sa, sg.sb
 	sg.keys = make([]uint64, slots)
 	sg.cnt = make([]uint8, slots)
 	if spot != nil {
@@ -242,6 +268,9 @@ func (h *Hashed) rehash(t *table, sg *segment, slots int) {
 	if grp != nil {
 		sg.grp = make([]uint64, slots)
 		sg.umi = make([]uint64, slots)
+	}
+	if cls != nil {
+		sg.cls, sg.sa, sg.sb = make([]uint64, slots), make([]uint64, slots), make([]uint64, slots)
 	}
 	sg.used = 0
 	mask := uint64(slots - 1)
@@ -271,6 +300,9 @@ func (h *Hashed) rehash(t *table, sg *segment, slots int) {
 		}
 		if grp != nil {
 			sg.grp[i], sg.umi[i] = grp[j], umi[j]
+		}
+		if cls != nil {
+			sg.cls[i], sg.sa[i], sg.sb[i] = cls[j], sa[j], sb[j]
 		}
 		sg.used++
 	}
@@ -346,6 +378,7 @@ func (h *Hashed) Results(n int) []Result {
 		l := &h.libs[li]
 		more := t.sortedMore()
 		var group []umiMol // molecules with a UMI group, collapsed below
+		var keys []umiMol  // FASTQ molecules with packed keys, likewise
 		for s := range t.segs {
 			sg := &t.segs[s]
 			for i, k := range sg.keys {
@@ -366,6 +399,10 @@ func (h *Hashed) Results(n int) []Result {
 						spots = append(spots, more[j].spot)
 					}
 				}
+				if sg.cls != nil && sg.sa[i] != 0 {
+					keys = append(keys, umiMol{group: sg.cls[i], umi: sg.sa[i], seqB: sg.sb[i], lib: int32(li), n: c, spots: slices.Clone(spots)})
+					continue
+				}
 				if sg.grp != nil && sg.grp[i] != 0 {
 					group = append(group, umiMol{group: sg.grp[i], umi: sg.umi[i], lib: int32(li), n: c, spots: slices.Clone(spots)})
 					continue
@@ -374,6 +411,7 @@ func (h *Hashed) Results(n int) []Result {
 			}
 		}
 		collapseGroups(group, h.libs, h.opt.OpticalDistance)
+		collapseKeys(keys, l, h.opt.OpticalDistance)
 	}
 	return results(h.libs, n, h.shift)
 }

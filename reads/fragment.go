@@ -19,7 +19,13 @@ type Fragment struct {
 	// UMIs seen at one position.
 	Group uint64
 	UMI   uint64
-	Spot  Spot
+	// Class, SeqA and SeqB are set for a FASTQ key whose leading bases
+	// pack (UMICode, KeyBases from 1 to MaxPackedKey): the hash of the
+	// library and UMI, and the packed leading bases of the two mates (SeqB
+	// 0 for a single read), for merging keys one base apart.
+	Class      uint64
+	SeqA, SeqB uint64
+	Spot       Spot
 	// LowRef and LowPos are the reference and unclipped 5' coordinate of
 	// the key's lower end (its only end for a single read). The record
 	// that counts a copy of the same molecule cannot start after LowPos
@@ -232,10 +238,15 @@ func (e end5) less(o end5) bool {
 	return !e.rev && o.rev
 }
 
+// MaxPackedKey is the most leading bases per mate that a FASTQ key packs
+// into Fragment.SeqA and SeqB (UMICode).
+const MaxPackedKey = 28
+
 // FASTQ returns the fragment of a single read (r2 nil) or a read pair:
 // the key is the leading KeyBases bases of each mate, the mates taken as
 // an unordered pair (a copy read from the other strand swaps R1 and R2,
-// as an alignment key's unordered ends do), plus the UMI.
+// as an alignment key's unordered ends do), plus the UMI. With KeyBases
+// from 1 to MaxPackedKey it also sets Class, SeqA and SeqB.
 func (k *Keyer) FASTQ(r1, r2 *FASTQRecord, lib int) Fragment {
 	f := Fragment{Library: lib}
 	if k.Opt.OpticalNames {
@@ -243,16 +254,27 @@ func (k *Keyer) FASTQ(r1, r2 *FASTQRecord, lib int) Fragment {
 	}
 	umi := k.umi(func(t Tag) []byte { return CommentTag(r1.Comment, t) }, r1.Name)
 	s1 := prefix(r1.Seq, k.Opt.KeyBases)
+	var s2 []byte
 	if r2 == nil {
 		k.group(&f, hashBytes(mix(seed3, uint64(lib)), s1), umi)
-		return f
+	} else {
+		s2 = prefix(r2.Seq, k.Opt.KeyBases)
+		if bytes.Compare(s2, s1) < 0 {
+			s1, s2 = s2, s1
+		}
+		h := hashBytes(mix(seed4, uint64(lib)), s1)
+		k.group(&f, hashBytes(h, s2), umi)
 	}
-	s2 := prefix(r2.Seq, k.Opt.KeyBases)
-	if bytes.Compare(s2, s1) < 0 {
-		s1, s2 = s2, s1
+	f.Group, f.UMI = 0, 0 // FASTQ UMIs are matched exactly
+	if k.Opt.KeyBases > 0 && k.Opt.KeyBases <= MaxPackedKey {
+		a, b := UMICode(s1), uint64(0)
+		if r2 != nil {
+			b = UMICode(s2)
+		}
+		if a != 0 && (r2 == nil || b != 0) {
+			f.Class, f.SeqA, f.SeqB = finish(mix(seed6, uint64(lib)), umi), a, b
+		}
 	}
-	h := hashBytes(mix(seed4, uint64(lib)), s1)
-	k.group(&f, hashBytes(h, s2), umi)
 	return f
 }
 
@@ -275,6 +297,7 @@ const (
 	seed3  = 0xA4093822299F31D0 // single FASTQ keys
 	seed4  = 0x082EFA98EC4E6C89 // paired FASTQ keys
 	seed5  = 0x452821E638D01377 // cell barcodes
+	seed6  = 0xBE5466CF34E90C6C // FASTQ key classes
 )
 
 func mix(h, v uint64) uint64 {

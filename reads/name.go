@@ -85,6 +85,37 @@ func ParseFASTQName(base string) (FASTQName, bool) {
 	return n, n.Sample != ""
 }
 
+// Patterned reports whether a read name of the form
+// instrument:run:flowcell:lane:tile:x:y[:UMI] (CASAVA 1.8 and later) says
+// the read comes from a patterned flow cell, whose wells are packed so
+// that optical and pad-hopping duplicates lie thousands of pixels apart.
+// The signals, both common practice (from the instruments' naming, not a
+// published specification): a flow cell ID ending in the suffix of a
+// patterned type (CCXX, BBXX, ALXX: HiSeq X/3000/4000; DRXX, DSXX, DMXX:
+// NovaSeq; and their ...XY variants), or a four-digit tile
+// (surface, swath, tile) numbering more than 19 tiles in a swath, which
+// only patterned flow cells have (MiSeq numbers up to 19, HiSeq 2500 up to
+// 16). It returns false for other names.
+func Patterned(name []byte) (patterned bool, flowcell, tile string) {
+	f := bytes.Split(MateName(name), colon)
+	if len(f) != 7 && len(f) != 8 {
+		return false, "", ""
+	}
+	fc, t := f[2], f[4]
+	if n := len(fc); n >= 4 {
+		switch string(fc[n-4 : n-2]) {
+		case "CC", "BB", "AL", "DR", "DS", "DM":
+			if sfx := string(fc[n-2:]); sfx == "XX" || sfx == "XY" {
+				return true, string(fc), string(t)
+			}
+		}
+	}
+	if v, ok := atoi(t, 9999); ok && len(t) == 4 && v%100 > 19 {
+		return true, string(fc), string(t)
+	}
+	return false, "", ""
+}
+
 // MateName returns name without a trailing "/1" or "/2".
 func MateName(name []byte) []byte {
 	if n := len(name); n >= 2 && name[n-2] == '/' && (name[n-1] == '1' || name[n-1] == '2') {

@@ -3,6 +3,7 @@ package reads
 import (
 	"errors"
 	"fmt"
+	"headroom/internal/inerr"
 )
 
 // Flag bits of the SAM FLAG field (SAM specification section 1.4).
@@ -216,31 +217,13 @@ func ParseCigar(dst []CigarOp, s []byte) ([]CigarOp, error) {
 }
 
 // ParseError is bad input at a position of a file, the shape every reader
-// of the project returns (as encoding/csv's ParseError): Line for text
-// formats (1-based), Column within it (1-based field; 0 when the whole
-// line or record is at fault), Record for binary formats (1-based record
-// number). Any of them may be zero. Match it with errors.As and the cause
-// with errors.Is (Err is one of the package's sentinel errors, wrapped).
-type ParseError struct {
-	Line   int64
-	Column int64
-	Record int64
-	Err    error
-}
-
-func (e *ParseError) Error() string {
-	switch {
-	case e.Line > 0 && e.Column > 0:
-		return fmt.Sprintf("line %d, column %d: %v", e.Line, e.Column, e.Err)
-	case e.Line > 0:
-		return fmt.Sprintf("line %d: %v", e.Line, e.Err)
-	case e.Record > 0:
-		return fmt.Sprintf("record %d: %v", e.Record, e.Err)
-	}
-	return e.Err.Error()
-}
-
-func (e *ParseError) Unwrap() error { return e.Err }
+// of the project returns (internal/inerr, as encoding/csv's ParseError):
+// Line for text formats (1-based), Column within it (1-based field; 0 when
+// the whole line or record is at fault), Record for binary formats
+// (1-based record number). Any of them may be zero. Match it with
+// errors.As and the cause with errors.Is (Err is one of the package's
+// sentinel errors, wrapped).
+type ParseError = inerr.ParseError
 
 // FileError is an error of one named input: File is the name the caller
 // gave it (a path, or "stdin"), Err the cause, usually a *ParseError.

@@ -336,6 +336,37 @@ put("fq_empty.fastq.gz", gz(b""))
 case("fq_empty_gz", "reads @fq_empty.fastq.gz", 1, "empty",
      "a gzip member holding zero bytes")
 
+# FASTQ mates and tags (reads): names of the CASAVA 1.8 layout, common practice.
+def fq_pairs(first, n, mate):
+    return "".join("@INV03:2:FCD11:1:1101:%d:%d %d:N:0:ACGT\n%s\n+\n%s\n"
+                   % (1000 + i, 2000 + i, mate, "ACGTTGCA"[i % 8:] + "ACGT" * 4, "I" * (len("ACGTTGCA"[i % 8:]) + 16))
+                   for i in range(first, first + n))
+
+
+put("BAD1_S1_L001_R1_001.fastq", fq_pairs(0, 6, 1))
+put("BAD1_S1_L001_R2_001.fastq", fq_pairs(3, 6, 2))
+case("fq_mates_unpaired", "reads @BAD1_S1_L001_R1_001.fastq @BAD1_S1_L001_R2_001.fastq", 1,
+     "cannot be paired",
+     "R1 and R2 files of one sample and lane whose first reads differ (R2 starts three reads later)")
+
+lines1, lines2 = fq_pairs(0, 3, 1).splitlines(True), fq_pairs(0, 3, 2).splitlines(True)
+inter = "".join("".join(lines1[4 * i:4 * i + 4]) + "".join(lines2[4 * i:4 * i + 4]) for i in range(3))
+put("fq_interleaved_odd.fq", inter + "".join(fq_pairs(3, 1, 1)))
+case("fq_interleaved_odd", "reads @fq_interleaved_odd.fq", 1, "fq_interleaved_odd.fq:25: the interleaved file ends with an unpaired record",
+     "an interleaved file (mates in turn) with 7 records")
+
+put("fq_cell_tag.fq", fq_pairs(0, 4, 1))
+case("fq_cell_tag", "reads --cell-tag CB @fq_cell_tag.fq", 1, "fq_cell_tag.fq: FASTQ has no cell barcodes: --cell-tag CB",
+     "--cell-tag given with FASTQ input")
+put("reads_freq_table.tsv", "sample\ttimes_seen\tunits\nLIB-1\t1\t5210\nLIB-1\t2\t733\n")
+case("reads_freq_table", "reads @reads_freq_table.tsv", 1, "this looks like a frequency table; use headroom counts",
+     "a frequency table (headroom counts input) given to headroom reads")
+put("reads_taxa_table.tsv", "#OTU ID\tPOND-A\tPOND-B\nASV1\t12\t0\nASV2\t3\t8\n")
+case("reads_taxa_table", "reads @reads_taxa_table.tsv", 1, "this looks like a taxon table; use headroom taxa",
+     "a taxon table (headroom taxa input) given to headroom reads")
+case("reads_umi_tag_bad", "reads --umi-tag R! @fq_cell_tag.fq", 2, "--umi-tag: \"R!\" is not a SAM tag name",
+     "--umi-tag with a name outside the SAM tag alphabet [A-Za-z][A-Za-z0-9]")
+
 case("fq_long_line", "reads %fq_long_line.fq", 1, "fq_long_line.fq:7:",
      "generated at test time: a record of a 10 MB sequence and quality (read), then a record without '+'")
 

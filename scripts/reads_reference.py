@@ -185,7 +185,7 @@ def directional(umis):
 
 def parse_args(args):
     o = {"by": "library", "umi_tags": ["RX"], "umi_name": False, "cell": None, "umi_errors": 1,
-         "min_mapq": 0, "optical": 100, "key_bases": 0, "files": []}
+         "min_mapq": 0, "optical": 100, "key_bases": 16, "files": []}
     i = 0
     while i < len(args):
         a = args[i]
@@ -294,6 +294,55 @@ def fastq_umi(entry, o):
     return ""
 
 
+def key_distance(x, y):
+    """Mismatches between two FASTQ keys (a, b), either mate order; None
+    when the lengths differ."""
+    best = None
+    for b0, b1 in ((y[0], y[1]), (y[1], y[0])):
+        if len(x[0]) == len(b0) and len(x[1]) == len(b1):
+            d = sum(p != q for p, q in zip(x[0], b0)) + sum(p != q for p, q in zip(x[1], b1))
+            best = d if best is None else min(best, d)
+    return best
+
+
+def collapse_fastq_keys(mols):
+    """Directional adjacency (Smith et al. 2017, as directional() above) over
+    FASTQ keys of one library and UMI, with edges between keys within two
+    mismatches (the leading bases of both mates, either mate order). Keys
+    with other letters than ACGT are matched exactly. mols: {key: spots},
+    key = ("F1"/"F2", a, b, umi). Returns [spots] and the number merged."""
+    by_umi = OrderedDict()
+    exact = []
+    for key, spots in mols.items():
+        a, b = key[1], key[2] if key[0] == "F2" else ""
+        if set(a + b) - set("ACGT") or len(a) > 28 or len(b) > 28:
+            exact.append(spots)
+            continue
+        by_umi.setdefault(key[-1], {})[(a, b)] = spots
+    out, merged = list(exact), 0
+    for keys in by_umi.values():
+        order = sorted(keys, key=lambda k: (-len(keys[k]), len(k[0]), k[0], len(k[1]), k[1]))
+        taken = set()
+        for k in order:
+            if k in taken:
+                continue
+            taken.add(k)
+            todo, spots = [k], []
+            while todo:
+                x = todo.pop(0)
+                spots += keys[x]
+                for y in order:
+                    if y in taken:
+                        continue
+                    d = key_distance(x, y)
+                    if d is not None and 1 <= d <= 2 and len(keys[x]) >= 2 * len(keys[y]) - 1:
+                        taken.add(y)
+                        merged += 1
+                        todo.append(y)
+            out.append(spots)
+    return out, merged
+
+
 def count_fastq(p1, p2, o, samples):
     lib = os.path.basename(p1)
     s = samples.setdefault(lib, Sample())
@@ -342,17 +391,27 @@ def run_case(args, base_dir):
     for name, s in samples.items():
         freq = {}
         used = optical = 0
-        # UMIs of one position, for error collapsing
+        # UMIs of one position, for error collapsing; FASTQ keys apart
+        # (their UMIs are matched exactly, their bases collapsed)
         groups = OrderedDict()
         mols = []
+        fq = OrderedDict()
         for key, spots in s.mols.items():
             used += len(spots)
+            if key[0] in ("F1", "F2"):
+                fq[key] = spots
+                continue
             b = umi_bases(key[-1]) if o["umi_errors"] > 0 else None
             if b is None:
                 mols.append(spots)
             else:
                 groups.setdefault(key[:-1], {})[b] = (len(spots), spots)
         merged = 0
+        if 0 < o["key_bases"] <= 28:
+            ms, _ = collapse_fastq_keys(fq)
+            mols += ms
+        else:
+            mols += list(fq.values())
         for umis in groups.values():
             ms, m = directional(umis)
             merged += m

@@ -23,6 +23,9 @@ import sys
 
 import pysam
 
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from reads_fixtures import segment  # noqa: E402  (record builder shared with the fixtures)
+
 BASES = "ACGT"
 
 
@@ -111,17 +114,7 @@ def cells(r):
 def write(path, hdr, recs):
     with pysam.AlignmentFile(path, "wb", header=hdr) as out:
         for x in recs:
-            a = pysam.AlignedSegment(out.header)
-            a.query_name = x["qname"]
-            a.flag = x["flag"]
-            a.reference_id = x["ref"]
-            a.reference_start = x["pos"]
-            a.mapping_quality = 60
-            a.cigartuples = x["cigar"]
-            a.next_reference_id = x["mref"]
-            a.next_reference_start = x["mpos"]
-            a.set_tags(x["tags"])
-            out.write(a)
+            out.write(segment(out.header, dict(x, mapq=60)))
 
 
 def main():

@@ -208,7 +208,8 @@ func inputError(file string, err error) error {
 			where = append(where, fmt.Sprintf("record %d", pe.Record))
 		}
 		err = pe.Err
-	} else if line, where, err = legacyPosition(err); line < 0 {
+	} else if pathErr := (*os.PathError)(nil); errors.As(err, &pathErr) || errors.Is(err, io.ErrUnexpectedEOF) {
+		// An I/O error, not a reader's finding: say what failed.
 		return inputf(name, 0, "cannot read: %v", unwrapPath(err))
 	}
 	msg := stripPackage(err.Error())
@@ -220,7 +221,7 @@ func inputError(file string, err error) error {
 
 // stripPackage drops a leading "pkg: " of headroom's own packages.
 func stripPackage(msg string) string {
-	for _, p := range []string{"freqtable: ", "reads: ", "amplicon: ", "dedup: ", "complexity: "} {
+	for _, p := range []string{"freqtable: ", "reads: ", "amplicon: ", "dedup: ", "complexity: ", "hdf5: "} {
 		msg = strings.ReplaceAll(msg, p, "")
 	}
 	return msg

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -59,8 +60,8 @@ func runReads(a *app, args []string) error {
 	fs.IntVar(&c.umiErrors, "umi-errors", 1, "merge UMIs within `N` mismatch of a more abundant UMI at the same position (directional adjacency); 0 = off")
 	fs.StringVar(&c.sample, "sample", "", "name the library of records that name none (FASTQ, no read group) `NAME`")
 	fs.IntVar(&c.minMapQ, "min-mapq", 0, "skip alignments with mapping quality below `Q`")
-	fs.Int64Var(&c.optical, "optical-distance", 100, "largest |dx| and |dy| in pixels of optical duplicates (`PX`; 2500 for patterned flow cells; 0 = off)")
-	fs.IntVar(&c.keyBases, "key-bases", 0, "FASTQ: leading bases of each mate in the molecule key (`N`; 0 = whole reads)")
+	fs.Int64Var(&c.optical, "optical-distance", 100, "largest |dx| and |dy| in pixels of optical duplicates (`PX`; 0 = off); unless given, 2500 for patterned flow cells, detected from read names")
+	fs.IntVar(&c.keyBases, "key-bases", 16, "FASTQ: leading bases of each mate in the molecule key (`N`); up to 28, keys within 2 mismatches merge as sequencing errors; 0 = whole reads, exact")
 	run := cmd.flags(groupRun)
 	run.StringVar(&c.mode, "mode", "auto", "counting: auto (window when the header says coordinate-sorted), sorted or hashed")
 	run.StringVar(&c.maxMemory, "max-memory", "4G", "memory budget of the hash tables (`SIZE`, e.g. 512M, 4G); past it molecules are subsampled by hash")
@@ -117,14 +118,15 @@ func runReads(a *app, args []string) error {
 		return err
 	}
 	opt := dedup.Options{
-		OpticalDistance: c.optical,
-		MemoryBudget:    mem,
-		BudgetName:      "--max-memory " + c.maxMemory,
-		By:              by,
-		Mode:            map[string]dedup.Mode{"auto": dedup.ModeAuto, "sorted": dedup.ModeSorted, "hashed": dedup.ModeHashed}[c.mode],
-		Key:             key,
-		UMIAsked:        cmd.changed("umi-tag"),
-		Threads:         s.threads,
+		OpticalDistance:   c.optical,
+		MemoryBudget:      mem,
+		BudgetName:        "--max-memory " + c.maxMemory,
+		By:                by,
+		Mode:              map[string]dedup.Mode{"auto": dedup.ModeAuto, "sorted": dedup.ModeSorted, "hashed": dedup.ModeHashed}[c.mode],
+		Key:               key,
+		UMIAsked:          cmd.changed("umi-tag"),
+		PatternedDistance: map[bool]int64{false: 2500, true: 0}[cmd.changed("optical-distance")],
+		Threads:           s.threads,
 	}
 	in, err := a.readsInputs(&c, s.showProgress(a), &opt)
 	defer in.close()
@@ -145,7 +147,8 @@ func runReads(a *app, args []string) error {
 				{key: "used_fragments", value: intCell(l.UsedFragments)},
 				{key: "optical_dups", value: intCell(l.OpticalDups)},
 			},
-			notes: l.Notes,
+			notes:     l.Notes,
+			sequenced: l.Sequenced,
 		}
 	}
 	return a.estimateAndWrite(s, runInfo{command: "reads", inputs: c.inputs}, samples)
@@ -186,20 +189,8 @@ func readsKeyOptions(c *readsConfig) (reads.KeyOptions, error) {
 
 // readsParseSize reads 512M, 4G, 1e9, 1048576 (bytes; k, M, G, T are powers of 1024).
 func readsParseSize(s string) (int64, error) {
-	t := strings.TrimSpace(s)
-	mult := 1.0
-	if n := len(t); n > 0 {
-		switch t[n-1] {
-		case 'k', 'K':
-			mult, t = 1<<10, t[:n-1]
-		case 'm', 'M':
-			mult, t = 1<<20, t[:n-1]
-		case 'g', 'G':
-			mult, t = 1<<30, t[:n-1]
-		case 't', 'T':
-			mult, t = 1<<40, t[:n-1]
-		}
-	}
+	t, p := splitSuffix(strings.TrimSpace(s))
+	mult := math.Pow(1024, float64(p))
 	v, err := strconv.ParseFloat(t, 64)
 	if err != nil || !(v > 0) || v*mult > 1<<62 {
 		return 0, fmt.Errorf("%q is not a size such as 512M or 4G", s)
@@ -330,24 +321,11 @@ func (c *readsCountingReader) Read(p []byte) (int, error) {
 // readsInputErr turns a counting error into "FILE:LINE: ..." or
 // "FILE: record N: ...", without the package prefixes of the readers.
 func readsInputErr(err error) error {
-	clean := func(err error) string {
-		s := strings.ReplaceAll(err.Error(), "reads: ", "")
-		return strings.ReplaceAll(s, "dedup: ", "")
-	}
 	var fe *reads.FileError
 	if !errors.As(err, &fe) {
-		return inputf("", 0, "%s", clean(err))
+		return inputf("", 0, "%s", stripPackage(err.Error()))
 	}
-	var pe *reads.ParseError
-	if errors.As(fe.Err, &pe) {
-		if pe.Line > 0 {
-			return inputf(fe.File, pe.Line, "%s", clean(pe.Err))
-		}
-		if pe.Record > 0 {
-			return inputf(fe.File, 0, "record %d: %s", pe.Record, clean(pe.Err))
-		}
-	}
-	return inputf(fe.File, 0, "%s", clean(fe.Err))
+	return inputError(fe.File, fe.Err)
 }
 
 func readsDisplayName(path string) string {

@@ -267,14 +267,7 @@ func (pl *plan) render(path string) []byte {
 	}
 	b.WriteString(strings.Join(planKeys, "\t") + "\n")
 	for _, r := range pl.rows {
-		cells := r.cells()
-		for k, c := range cells {
-			if k > 0 {
-				b.WriteByte('\t')
-			}
-			b.WriteString(c.tsv)
-		}
-		b.WriteByte('\n')
+		writeTSVRow(&b, r.cells())
 	}
 	return b.Bytes()
 }

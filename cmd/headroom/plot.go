@@ -51,7 +51,9 @@ const plotMaxCurves = 8
 func plotSubset(est []estimated) (idx []int, note string) {
 	var usable []int
 	for i, e := range est {
-		if len(e.rep.Points) > 0 && e.rep.Reads > 0 {
+		// A sample without a curve beyond its reads (too few reads, one
+		// unit) has nothing to show and would take a slot from others.
+		if len(e.rep.Points) > 0 && e.rep.Reads > 0 && e.rep.Curve.Model != nil {
 			usable = append(usable, i)
 		}
 	}

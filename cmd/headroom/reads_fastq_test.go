@@ -178,3 +178,35 @@ func TestReadsFASTQUnpairable(t *testing.T) {
 		})
 	}
 }
+
+// TestReadsPatternedFlowCell: names of a patterned flow cell switch the
+// optical distance to 2500 px with a note, unless --optical-distance was
+// given. Each of 200 molecules is read twice, the second read 1,000 px
+// from the first on the same tile: optical duplicates on a patterned flow
+// cell, 200 of them at 2500 px and none at 100 px.
+func TestReadsPatternedFlowCell(t *testing.T) {
+	var b strings.Builder
+	for i := 0; i < 200; i++ {
+		s := fmt.Sprintf("%020b", i*2654435761%1048576)
+		s = strings.NewReplacer("0", "A", "1", "C").Replace(s) + "GTGTGTGTGT"
+		for c := 0; c < 2; c++ {
+			fmt.Fprintf(&b, "@INV02:12:HVKNWDSXY:1:2471:%d:%d 1:N:0:ACGT\n%s\n+\n%s\n", 2000+i*10+c*1000, 5000, s, strings.Repeat("F", len(s)))
+		}
+	}
+	files := map[string]string{"p.fq": b.String()}
+	code, rows, msg := runReadsIn(t, files, "p.fq")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, msg)
+	}
+	row := rows["p.fq"]
+	if got := rowField(row, "optical_dups"); got != "200" {
+		t.Errorf("optical_dups %s, want 200", got)
+	}
+	if n := rowField(row, "notes"); !strings.Contains(n, "patterned flow cell (flow cell HVKNWDSXY, tile 2471): optical duplicates within 2500 px") {
+		t.Errorf("no patterned note: %s", n)
+	}
+	_, rows, _ = runReadsIn(t, files, "--optical-distance", "100", "p.fq")
+	if got, n := rowField(rows["p.fq"], "optical_dups"), rowField(rows["p.fq"], "notes"); got != "0" || strings.Contains(n, "patterned") {
+		t.Errorf("--optical-distance 100: optical_dups %s, notes %s", got, n)
+	}
+}

@@ -57,20 +57,8 @@ func parseDepth(s string) (depthSpec, error) {
 // "1e8", "40000000". It refuses NaN and infinities; the caller checks the
 // range.
 func parseAmount(s string) (float64, error) {
-	t := strings.TrimSpace(s)
-	mult := 1.0
-	if n := len(t); n > 1 {
-		switch t[n-1] {
-		case 'k', 'K':
-			mult, t = 1e3, t[:n-1]
-		case 'm', 'M':
-			mult, t = 1e6, t[:n-1]
-		case 'g', 'G':
-			mult, t = 1e9, t[:n-1]
-		case 't', 'T':
-			mult, t = 1e12, t[:n-1]
-		}
-	}
+	t, p := splitSuffix(strings.TrimSpace(s))
+	mult := math.Pow(1000, float64(p))
 	v, err := strconv.ParseFloat(t, 64)
 	if err != nil || math.IsNaN(v) || math.IsInf(v*mult, 0) {
 		return 0, fmt.Errorf("%q is not a number such as 20k, 50M, 2.5G or 1e8", s)
@@ -317,3 +305,22 @@ func (f *optFloat) Set(v string) error {
 }
 
 func (f *optFloat) Type() string { return "float" }
+
+// splitSuffix splits a trailing k, M, G or T (either case) off a number
+// and says which power it is (1 to 4; 0 without one). Counts take it as
+// powers of 1000 (parseAmount), sizes in bytes as powers of 1024.
+func splitSuffix(t string) (string, int) {
+	if n := len(t); n > 1 {
+		switch t[n-1] {
+		case 'k', 'K':
+			return t[:n-1], 1
+		case 'm', 'M':
+			return t[:n-1], 2
+		case 'g', 'G':
+			return t[:n-1], 3
+		case 't', 'T':
+			return t[:n-1], 4
+		}
+	}
+	return t, 0
+}

@@ -155,15 +155,20 @@ func writeSummaryTSV(s *shared, samples []estimated) []byte {
 		for _, r := range e.reach {
 			cells = append(cells, readsCell(r.reads), readsCell(r.lo), readsCell(r.hi))
 		}
-		for i, c := range cells {
-			if i > 0 {
-				b.WriteByte('\t')
-			}
-			b.WriteString(c.tsv)
-		}
-		b.WriteByte('\n')
+		writeTSVRow(&b, cells)
 	}
 	return b.Bytes()
+}
+
+// writeTSVRow writes one row of cells, tab-separated.
+func writeTSVRow(b *bytes.Buffer, cells []cell) {
+	for i, c := range cells {
+		if i > 0 {
+			b.WriteByte('\t')
+		}
+		b.WriteString(c.tsv)
+	}
+	b.WriteByte('\n')
 }
 
 // writeSummaryJSON renders the summary document (DESIGN.md, JSON).
