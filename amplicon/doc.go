@@ -14,10 +14,22 @@
 //   - BIOM 1.0 JSON, dense and sparse, per the BIOM 1.0 format
 //     specification (fields shape, rows, columns, matrix_type,
 //     matrix_element_type, data).
-//   - BIOM 2.x files are HDF5; they are recognised by the HDF5 signature and
-//     refused with a hint on converting them.
+//   - BIOM 2.1 (HDF5), per the BIOM format specification version 2.1:
+//     groups observation/ and sample/, each with ids and matrix/data,
+//     matrix/indices, matrix/indptr (observation/matrix is compressed
+//     sparse rows by taxon, sample/matrix by sample, i.e. CSC). The HDF5
+//     structures are read by headroom/internal/hdf5 (HDF5 File Format
+//     Specification version 3.0), which lists what it supports and what
+//     it refuses. sample/matrix is streamed sample by sample (sample i's
+//     counts are data[indptr[i]:indptr[i+1]] of taxa indices[...]), so
+//     memory holds one sample, the IDs, one total per taxon and one
+//     decoded chunk per dataset. Both matrices' indptr, the IDs and the
+//     shape and nnz attributes must agree. An HDF5 stream without random
+//     access (standard input, gzip) is copied to a temporary file.
 //
-// Any of these may be gzip-compressed.
+// Any of these may be gzip-compressed. Files meant for another headroom
+// subcommand (BAM, CRAM, SAM, FASTQ, frequency-count tables) are
+// recognised and refused with the subcommand to use (ErrWrongFile).
 //
 // Reading streams: a table is read row by row into per-sample accumulators,
 // so memory grows with samples × distinct count values (plus the row and

@@ -3,6 +3,8 @@ package amplicon
 import (
 	"errors"
 	"fmt"
+
+	"headroom/internal/inerr"
 )
 
 // Kinds of bad input. A *ParseError wraps one of them; test with errors.Is.
@@ -13,34 +15,28 @@ var (
 	ErrDuplicate = errors.New("amplicon: duplicate identifier")
 	ErrEmpty     = errors.New("amplicon: empty table")
 	ErrTruncated = errors.New("amplicon: truncated input")
-	ErrHDF5      = errors.New("amplicon: BIOM 2 (HDF5) file")
+	ErrHDF5      = errors.New("amplicon: unsupported HDF5 feature")
 	ErrSyntax    = errors.New("amplicon: malformed input")
 	ErrTooLarge  = errors.New("amplicon: value too large")
+	ErrWrongFile = errors.New("amplicon: not a taxon count table")
 )
 
-// ParseError is bad input at a position. Line and Column are 1-based;
-// Column is the field number in delimited text and the byte position on
-// the line in JSON; 0 means unknown.
-type ParseError struct {
-	Line   int64
-	Column int64
-	Kind   error  // one of the Err* values above
-	Msg    string // what is wrong and what to do, without position
+// ParseError is bad input at a position, the shape every reader of
+// headroom shares (internal/inerr). Line and Column are 1-based; Column is
+// the field number in delimited text and the byte position on the line in
+// JSON; 0 means unknown. Err says what is wrong and what to do, without
+// position, and wraps one of the kinds above (errors.Is).
+type ParseError = inerr.ParseError
+
+// problem is what is wrong (msg) and its kind, for errors.Is.
+type problem struct {
+	kind error
+	msg  string
 }
 
-func (e *ParseError) Error() string {
-	switch {
-	case e.Line > 0 && e.Column > 0:
-		return fmt.Sprintf("amplicon: line %d, column %d: %s", e.Line, e.Column, e.Msg)
-	case e.Line > 0:
-		return fmt.Sprintf("amplicon: line %d: %s", e.Line, e.Msg)
-	}
-	return "amplicon: " + e.Msg
-}
-
-// Unwrap returns the kind of error.
-func (e *ParseError) Unwrap() error { return e.Kind }
+func (p *problem) Error() string { return p.msg }
+func (p *problem) Unwrap() error { return p.kind }
 
 func perr(line, col int64, kind error, format string, args ...any) *ParseError {
-	return &ParseError{Line: line, Column: col, Kind: kind, Msg: fmt.Sprintf(format, args...)}
+	return &ParseError{Line: line, Column: col, Err: &problem{kind: kind, msg: fmt.Sprintf(format, args...)}}
 }

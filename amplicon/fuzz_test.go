@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"compress/gzip"
 	"errors"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -36,8 +38,8 @@ func fuzzRead(t *testing.T, data []byte) {
 			if !errors.As(err, &pe) {
 				t.Fatalf("error is not a *ParseError: %v", err)
 			}
-			if strings.ContainsAny(pe.Msg, "\n\r") {
-				t.Fatalf("multi-line message %q", pe.Msg)
+			if strings.ContainsAny(pe.Err.Error(), "\n\r") {
+				t.Fatalf("multi-line message %q", pe.Err.Error())
 			}
 			continue
 		}
@@ -77,5 +79,31 @@ func FuzzReadBIOM(f *testing.F) {
 		zw.Write(data)
 		zw.Close()
 		fuzzRead(t, b.Bytes())
+	})
+}
+
+// FuzzReadBIOM2 fuzzes the BIOM 2.1 reader above the HDF5 layer (seeds:
+// the fixtures of testdata/taxa/biom2, written by
+// scripts/biom2_fixtures.py; corpus in testdata/fuzz/FuzzReadBIOM2).
+func FuzzReadBIOM2(f *testing.F) {
+	for _, name := range []string{"small.biom", "no_metadata.biom", "h5-latest-contiguous.biom", "h5-int-counts.biom",
+		"bad/fraction.biom", "bad/indptr_decreasing.biom"} {
+		if b, err := os.ReadFile(filepath.Join(biom2Dir, name)); err == nil {
+			f.Add(b)
+		}
+	}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		tab, err := Read(bytes.NewReader(data), Options{})
+		if err != nil {
+			var pe *ParseError
+			if !errors.As(err, &pe) {
+				t.Fatalf("error is not a *ParseError: %v", err)
+			}
+			if strings.ContainsAny(pe.Err.Error(), "\n\r") {
+				t.Fatalf("multi-line message %q", pe.Err.Error())
+			}
+			return
+		}
+		checkInvariants(t, tab)
 	})
 }

@@ -162,7 +162,7 @@ func TestBadInput(t *testing.T) {
 		{"nul", "taxon\tA\nt1\t5\x00\n", ErrSyntax, 2, 0, "binary data"},
 		{"huge", "taxon\tA\nt1\t99999999999999999999\n", ErrTooLarge, 2, 2, "too large"},
 		{"overflow", "taxon\tA\nt1\t9223372036854775807\nt2\t1\n", ErrTooLarge, 3, 2, "more than"},
-		{"hdf5", "\x89HDF\r\n\x1a\n\x00\x00", ErrHDF5, 1, 1, "BIOM 2 file (HDF5)"},
+		{"hdf5 cut short", "\x89HDF\r\n\x1a\n\x00\x00", ErrTruncated, 0, 0, "HDF5: 12 bytes at address 0 lie beyond the end of the file"},
 		{"biom truncated", `{"shape":[2,2],"matrix_type":"dense",` + biomIDs + `,"data":[[1,2],[3,`, ErrTruncated, 1, 0, "truncated BIOM JSON"},
 		{"biom truncated key", `{"shape":[2,2],"matr`, ErrTruncated, 1, 0, "truncated BIOM JSON"},
 		{"biom syntax", "{\"shape\":[2,2],\n\"data\" [[1,2]]}", ErrSyntax, 2, 0, "syntax error"},
@@ -193,9 +193,9 @@ func TestBadInput(t *testing.T) {
 			t.Errorf("%s: err = %v, want a *ParseError", c.name, err)
 			continue
 		}
-		if !errors.Is(err, c.kind) || pe.Line != c.line || (c.col != 0 && pe.Column != c.col) || !strings.Contains(pe.Msg, c.msg) {
+		if !errors.Is(err, c.kind) || pe.Line != c.line || (c.col != 0 && pe.Column != c.col) || !strings.Contains(pe.Err.Error(), c.msg) {
 			t.Errorf("%s: got %v (line %d col %d kind %v), want line %d col %d kind %v and %q",
-				c.name, err, pe.Line, pe.Column, pe.Kind, c.line, c.col, c.kind, c.msg)
+				c.name, err, pe.Line, pe.Column, pe.Err, c.line, c.col, c.kind, c.msg)
 		}
 		if strings.Contains(pe.Error(), "\n") {
 			t.Errorf("%s: message spans lines: %q", c.name, pe.Error())

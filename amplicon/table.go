@@ -9,6 +9,7 @@ import (
 
 	"headroom/complexity"
 	"headroom/internal/gzin"
+	"headroom/internal/hdf5"
 )
 
 // Layout says which way a delimited table runs.
@@ -48,8 +49,9 @@ type Sample struct {
 
 // Table is a count table reduced to frequency counts.
 type Table struct {
-	// Format is "tsv", "csv", "ssv" (semicolons), "biom-dense" or
-	// "biom-sparse", with ".gz" appended for gzip input.
+	// Format is "tsv", "csv", "ssv" (semicolons), "biom-dense",
+	// "biom-sparse" (BIOM 1.0) or "biom-hdf5" (BIOM 2.1), with ".gz"
+	// appended for gzip input.
 	Format string
 	// Layout is how a delimited table was read (TaxaAsRows for BIOM).
 	Layout Layout
@@ -68,8 +70,8 @@ type Table struct {
 // readBuf is the read buffer size; longer lines are assembled (lineReader).
 const readBuf = 64 << 10
 
-// HDF5 file signature (HDF5 File Format Specification, superblock).
-var hdf5Magic = []byte("\x89HDF\r\n\x1a\n")
+// sniffLen is how many leading bytes tell the kind of file.
+const sniffLen = 4096
 
 // Read reads a whole table from r: delimited text or BIOM 1.0 JSON, either
 // possibly gzip-compressed. Errors in the data are *ParseError values.
@@ -78,7 +80,16 @@ func Read(r io.Reader, opt Options) (*Table, error) {
 	if err != nil {
 		return nil, perr(0, 0, ErrTruncated, "gzip header unreadable: %v", err)
 	}
-	t, err := readPlain(br, opt)
+	var t *Table
+	head, _ := br.Peek(sniffLen)
+	if msg := wrongTool(head); msg != "" {
+		return nil, perr(0, 0, ErrWrongFile, "%s", msg)
+	}
+	if bytes.HasPrefix(head, hdf5.Signature) {
+		t, err = readHDF5(r, br, gz)
+	} else {
+		t, err = readPlain(br, opt)
+	}
 	if err != nil {
 		return nil, gzipErr(0, err)
 	}
@@ -105,14 +116,6 @@ func gzipErr(line int64, err error) error {
 }
 
 func readPlain(br *bufio.Reader, opt Options) (*Table, error) {
-	head, err := br.Peek(len(hdf5Magic))
-	if err != nil && err != io.EOF && err != bufio.ErrBufferFull {
-		return nil, err
-	}
-	if bytes.Equal(head, hdf5Magic) {
-		return nil, perr(1, 1, ErrHDF5, "this is a BIOM 2 file (HDF5), which headroom does not read; convert it to "+
-			"TSV or BIOM 1.0 JSON first, e.g. `biom convert -i table.biom -o table.tsv --to-tsv`")
-	}
 	// The first byte that is not white space (or a UTF-8 byte-order mark)
 	// tells JSON from text.
 	for i := 0; ; i++ {
@@ -136,6 +139,17 @@ func readPlain(br *bufio.Reader, opt Options) (*Table, error) {
 		break
 	}
 	return readDelimited(br, opt)
+}
+
+// readHDF5 reads a BIOM 2.1 table whose stream (r, buffered as br) starts
+// with the HDF5 signature.
+func readHDF5(r io.Reader, br *bufio.Reader, gz bool) (*Table, error) {
+	ra, size, cleanup, err := hdf5Input(r, br, gz)
+	if err != nil {
+		return nil, err
+	}
+	defer cleanup()
+	return readBIOM2(ra, size)
 }
 
 // note formats one phrase of Table.Notes.

@@ -11,15 +11,17 @@ const horizon = 100.0
 // analysis is the state Analyze's steps share: the table, the options
 // resolved to their defaults, the chosen curve and the bootstrap.
 type analysis struct {
-	c       Counts
-	opt     Options
-	level   float64
-	threads int
-	knots   []Knot
-	maxT    float64 // deepest depth the curve must be admissible to
-	cv      Curve
-	kind    curveKind
-	reps    *replicates // nil without bootstrap
+	c        Counts
+	opt      Options
+	level    float64
+	threads  int
+	knots    []Knot
+	fitKnots []Knot  // weights of the adaptive term (adapt.go)
+	bt       float64 // the self-backtest error, missing when none
+	maxT     float64 // deepest depth the curve must be admissible to
+	cv       Curve
+	kind     curveKind
+	reps     *replicates // nil without bootstrap
 }
 
 // Analyze estimates everything Report holds for one sample. It never
@@ -35,6 +37,12 @@ func Analyze(c Counts, opt Options) Report {
 	r := a.observe()
 	a.fit(&r)
 	pts := a.points()
+	// The self-backtest (its own stream of the seed) also widens the
+	// intervals of a curve that fits the sample badly (adapt.go).
+	if a.kind.backtested() {
+		r.BacktestError = backtest(c, a.cv.Model, opt.Seed)
+	}
+	a.bt = r.BacktestError
 	a.bootstrap(&r)
 	point, lo, hi := a.intervals(pts)
 	a.total(&r)
@@ -43,9 +51,6 @@ func Analyze(c Counts, opt Options) Report {
 	if len(opt.Curve) > 0 {
 		k := n + len(opt.Curve)
 		r.Points = a.predictions(pts[n:k], point[n:k], lo[n:k], hi[n:k])
-	}
-	if a.kind.backtested() {
-		r.BacktestError = backtest(c, a.cv.Model, opt.Seed)
 	}
 	r.Reach = a.reach()
 	if a.gated() {
@@ -64,7 +69,7 @@ func Analyze(c Counts, opt Options) Report {
 // the curve must be admissible: twice the observed reads, every depth
 // asked for, and the reach horizon when targets are asked.
 func newAnalysis(c Counts, opt Options) *analysis {
-	a := &analysis{c: c, opt: opt, level: opt.Level, threads: opt.Threads, knots: opt.ModelError, cv: Curve{Counts: c}}
+	a := &analysis{c: c, opt: opt, level: opt.Level, threads: opt.Threads, knots: opt.ModelError, cv: Curve{Counts: c}, bt: missing}
 	if a.level == 0 {
 		a.level = 0.95
 	}
@@ -73,6 +78,9 @@ func newAnalysis(c Counts, opt Options) *analysis {
 	}
 	if a.knots == nil {
 		a.knots = defaultKnots
+	}
+	if a.fitKnots = opt.FitError; a.fitKnots == nil {
+		a.fitKnots = defaultFitKnots
 	}
 	n := float64(c.Reads())
 	a.maxT = 2 * n

@@ -30,6 +30,11 @@ type Options struct {
 	// intervals (see Knot). nil means the calibrated defaults; a single
 	// knot {1, 0} gives bootstrap-only intervals (used to calibrate).
 	ModelError []Knot
+	// FitError are the knots (M, weight κ as S) of the adaptive term that
+	// widens the intervals of a sample by its self-backtest error (see
+	// adapt.go). nil means the calibrated defaults; a single knot {1, 0}
+	// gives none (used to calibrate).
+	FitError []Knot
 }
 
 // Knot is one point of the model-error curve of extrapolation intervals:

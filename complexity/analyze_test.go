@@ -233,3 +233,27 @@ func TestSingletonFiltered(t *testing.T) {
 		t.Errorf("total %v, want %v within 1%%", r.Total, units)
 	}
 }
+
+// TestTinySampleObservedOnly: below minExtrapolateReads a sample gets its
+// observed values, rarefaction below them, no curve above and a note that
+// says why (the threshold is measured by scripts/tinybench).
+func TestTinySampleObservedOnly(t *testing.T) {
+	c, _ := FromMap(map[int64]int64{1: 3, 2: 1}) // a 5-read blank
+	r := Analyze(c, Options{Depths: []float64{2, 10}, Bootstrap: 20, Reach: []Target{{TargetDistinct, 3}, {TargetDistinct, 8}}, Gates: NoGates()})
+	if r.Curve.Model != nil || r.Method != "" {
+		t.Errorf("tiny sample extrapolated with %q", r.Method)
+	}
+	if !math.IsNaN(r.Predictions[1].Distinct) || math.IsNaN(r.Predictions[0].Distinct) {
+		t.Errorf("predictions %v: want rarefaction at 2 reads and nothing at 10", r.Predictions)
+	}
+	if math.IsNaN(r.Reach[0].Reads) || !math.IsNaN(r.Reach[1].Reads) {
+		t.Errorf("reach %v: distinct 3 is met within the reads, 8 cannot be", r.Reach)
+	}
+	found := false
+	for _, n := range r.Notes {
+		found = found || strings.Contains(n, "too few to extrapolate")
+	}
+	if !found {
+		t.Errorf("notes %q lack the tiny-sample caution", r.Notes)
+	}
+}

@@ -16,6 +16,9 @@ package complexity
 //	"shen"       Chao1-based extrapolation (Shen, Chao & Lin 2003,
 //	             Ecology 84:798)
 //	"select"     the selection Analyze uses (see select.go)
+//	"npmle"      nonparametric Poisson mixture on a grid of rates, fitted
+//	             by EM (Laird 1978; Lindsay 1983; see npmle.go), a
+//	             candidate evaluated and not used by Analyze
 //
 // and the mixture families select.go compares, each fitted alone:
 // "lognormal-h", "lognormal2-h", "ztnb-h", "powerlaw-h", "band-h" (free
@@ -38,6 +41,8 @@ func Baseline(name string, c Counts, maxT float64) (m Model, admissible bool, er
 		m = newShenModel(c)
 	case "select":
 		m, _, err = extrapolate(c, maxT)
+	case "npmle":
+		m, err = fitNPMLE(c, maxT)
 	default:
 		m, err = refitCandidate(name, c, name, nil)
 	}

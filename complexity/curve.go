@@ -157,14 +157,18 @@ func (cv Curve) solve(t Target, scale, maxT float64) float64 {
 	return math.NaN()
 }
 
-// solveJoined is solveIncreasing on a curve with a Model, searched on
+// solveJoined is solveIncreasing on the curve; with a Model it is searched on
 // each side of the observed depth apart: rarefaction and the fitted curve
 // meet at N, but their slopes need not (the model's is fitted, the
 // rarefied one exact), so a slope target could be crossed twice near N.
 // A target met at N is answered at or below it, from rarefaction.
 func (cv Curve) solveJoined(f func(float64) float64, target, lo, scale, maxT float64) float64 {
 	n := float64(cv.Counts.Reads()) / scale
-	if cv.Model == nil || !(n > lo && n < maxT) {
+	if cv.Model == nil {
+		// Only rarefaction is known: search up to N, not into NaN.
+		return solveIncreasing(f, target, lo, math.Min(maxT, n))
+	}
+	if !(n > lo && n < maxT) {
 		return solveIncreasing(f, target, lo, maxT)
 	}
 	if f(n) >= target {

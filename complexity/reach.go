@@ -147,7 +147,7 @@ func (a *analysis) reachBand(t Target, maxT float64) (lo, hi float64) {
 // reachYield inverts the interval of the marginal yield for a yield
 // target (and a coverage one, as yield 1 − C; see reach): at depth T the
 // yield Y(T) has the log-scale interval Y·exp(∓z·s), s² = s_boot² +
-// s_model(T/N)², with s_boot the spread of log Y over the replicates (each
+// s_model(T/N)² + s_fit(T/N)² (adapt.go), with s_boot the spread of log Y over the replicates (each
 // replicate's slope at T, in the sample's depths) and s_model the knots
 // of the distinct intervals, as if the model's error on the new units
 // carried over to their slope. Lo is where the lower end falls to the
@@ -170,7 +170,7 @@ func (a *analysis) reachYield(y, maxT float64) (lo, hi float64) {
 			if !(p > 0) {
 				return -p
 			}
-			return -p * math.Exp(sign*logSpread(buf, 0, a.level, modelErr(a.knots, T/n)))
+			return -p * math.Exp(sign*logSpread(buf, 0, a.level, math.Hypot(modelErr(a.knots, T/n), fitErr(a.fitKnots, T/n, a.bt))))
 		}
 	}
 	lo = a.cv.solveJoined(bound(-1), -y, 1, 1, maxT)

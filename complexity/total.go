@@ -35,7 +35,7 @@ func (a *analysis) total(r *Report) {
 	} else {
 		r.Total, r.TotalMethod = lim, "limit"
 		if a.reps != nil && len(a.reps.limits) > 1 {
-			r.TotalLo, r.TotalHi = interval(lim, a.reps.limits, a.level, c, math.Inf(1), a.knots)
+			r.TotalLo, r.TotalHi = intervalFit(lim, a.reps.limits, a.level, c, math.Inf(1), a.knots, fitErr(a.fitKnots, math.Inf(1), a.bt))
 		}
 	}
 	if r.Total > 0 {

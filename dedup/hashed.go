@@ -33,6 +33,8 @@ type Hashed struct {
 type table struct {
 	segs  [segments]segment
 	spots bool
+	umis  bool // segments hold each molecule's UMI group and UMI
+	seqs  bool // segments hold each FASTQ molecule's Class, SeqA and SeqB
 	over  map[uint64]int64
 	more  [][]keySpot
 	extra int64 // estimated bytes of over and more
@@ -54,6 +56,11 @@ type segment struct {
 	keys []uint64
 	cnt  []uint8
 	spot []reads.Spot
+	grp  []uint64 // Fragment.Group, when the table has umis
+	umi  []uint64 // Fragment.UMI, likewise
+	cls  []uint64 // Fragment.Class, when the table has seqs
+	sa   []uint64 // Fragment.SeqA, likewise
+	sb   []uint64 // Fragment.SeqB, likewise
 	used int
 }
 
@@ -64,7 +71,7 @@ const (
 	// segment alike.
 	segments     = 256
 	segmentBits  = 8
-	initialSlots = 16 // per segment
+	initialSlots = 4 // per segment: 9 KiB a table, so thousands of cells fit
 	// maxLoadNum/maxLoadDen is the largest fill before a segment doubles:
 	// linear probing stays short below 80 %, and the slots per molecule
 	// stay between 1.25 and 2.5, i.e. 11 to 23 bytes per molecule (about
@@ -81,6 +88,13 @@ func (h *Hashed) SetLeadClip(int64) {}
 
 // Advance implements Counter (no-op).
 func (h *Hashed) Advance(int32, int64) {}
+
+// SetDistance sets the optical distance of library lib, in place of
+// Options.OpticalDistance (a patterned flow cell: reads.Patterned).
+func (h *Hashed) SetDistance(lib int, d int64) {
+	h.libs = grow(h.libs, lib)
+	h.libs[lib].dist = d
+}
 
 // Shift returns the current subsampling shift.
 func (h *Hashed) Shift() uint { return h.shift }
@@ -99,6 +113,12 @@ func (t *table) slotBytes() int64 {
 	if t.spots {
 		b += 8
 	}
+	if t.umis {
+		b += 16
+	}
+	if t.seqs {
+		b += 24
+	}
 	return b
 }
 
@@ -110,7 +130,15 @@ func (t *table) size() int64 {
 	return n*t.slotBytes() + t.extra
 }
 
-func (h *Hashed) kept(key uint64) bool { return h.shift == 0 || key>>(64-h.shift) == 0 }
+// kept reports whether the subsample keeps a molecule: by its UMI group
+// when it has one, so that a position's UMIs are kept or dropped
+// together (their errors must meet their source), else by its key.
+func (h *Hashed) kept(key, group uint64) bool {
+	if group != 0 {
+		key = group
+	}
+	return h.shift == 0 || key>>(64-h.shift) == 0
+}
 
 // Add implements Counter.
 func (h *Hashed) Add(f reads.Fragment) {
@@ -121,7 +149,7 @@ func (h *Hashed) Add(f reads.Fragment) {
 	}
 	h.libs = grow(h.libs, f.Library)
 	h.libs[f.Library].fragments++
-	if !h.kept(f.Key) {
+	if !h.kept(f.Key, f.Group) {
 		return
 	}
 	t := h.tabs[f.Library]
@@ -130,6 +158,24 @@ func (h *Hashed) Add(f reads.Fragment) {
 		t.spots = true
 		for i := range t.segs {
 			t.segs[i].spot = make([]reads.Spot, len(t.segs[i].keys))
+		}
+		h.bytes += t.size()
+	}
+	if f.SeqA != 0 && !t.seqs {
+		h.bytes -= t.size()
+		t.seqs = true
+		for i := range t.segs {
+			n := len(t.segs[i].keys)
+			t.segs[i].cls, t.segs[i].sa, t.segs[i].sb = make([]uint64, n), make([]uint64, n), make([]uint64, n)
+		}
+		h.bytes += t.size()
+	}
+	if f.Group != 0 && !t.umis {
+		h.bytes -= t.size()
+		t.umis = true
+		for i := range t.segs {
+			t.segs[i].grp = make([]uint64, len(t.segs[i].keys))
+			t.segs[i].umi = make([]uint64, len(t.segs[i].keys))
 		}
 		h.bytes += t.size()
 	}
@@ -151,6 +197,12 @@ func (h *Hashed) Add(f reads.Fragment) {
 	sg.cnt[i] = 1
 	if sg.spot != nil {
 		sg.spot[i] = f.Spot
+	}
+	if sg.grp != nil {
+		sg.grp[i], sg.umi[i] = f.Group, f.UMI
+	}
+	if sg.cls != nil {
+		sg.cls[i], sg.sa[i], sg.sb[i] = f.Class, f.SeqA, f.SeqB
 	}
 	sg.used++
 	if sg.used*maxLoadDen > len(sg.keys)*maxLoadNum {
@@ -207,11 +259,18 @@ func (h *Hashed) makeRoom(t *table, sg *segment) {
 // molecules the current shift no longer keeps.
 func (h *Hashed) rehash(t *table, sg *segment, slots int) {
 	old := int64(len(sg.keys)) * t.slotBytes()
-	keys, cnt, spot := sg.keys, sg.cnt, sg.spot
+	keys, cnt, spot, grp, umi, cls, sa, sb := sg.keys, sg.cnt, sg.spot, sg.grp, sg.umi, sg.cls, sg.sa, sg.sb
 	sg.keys = make([]uint64, slots)
 	sg.cnt = make([]uint8, slots)
 	if spot != nil {
 		sg.spot = make([]reads.Spot, slots)
+	}
+	if grp != nil {
+		sg.grp = make([]uint64, slots)
+		sg.umi = make([]uint64, slots)
+	}
+	if cls != nil {
+		sg.cls, sg.sa, sg.sb = make([]uint64, slots), make([]uint64, slots), make([]uint64, slots)
 	}
 	sg.used = 0
 	mask := uint64(slots - 1)
@@ -219,7 +278,11 @@ func (h *Hashed) rehash(t *table, sg *segment, slots int) {
 		if k == 0 {
 			continue
 		}
-		if !h.kept(k) {
+		var g uint64
+		if grp != nil {
+			g = grp[j]
+		}
+		if !h.kept(k, g) {
 			if cnt[j] == 255 {
 				delete(t.over, k)
 				t.extra -= mapEntryBytes
@@ -235,6 +298,12 @@ func (h *Hashed) rehash(t *table, sg *segment, slots int) {
 		if spot != nil {
 			sg.spot[i] = spot[j]
 		}
+		if grp != nil {
+			sg.grp[i], sg.umi[i] = grp[j], umi[j]
+		}
+		if cls != nil {
+			sg.cls[i], sg.sa[i], sg.sb[i] = cls[j], sa[j], sb[j]
+		}
 		sg.used++
 	}
 	h.bytes += int64(slots)*t.slotBytes() - old
@@ -244,12 +313,12 @@ func (h *Hashed) rehash(t *table, sg *segment, slots int) {
 }
 
 // dropMore removes from t.more the spots of molecules the current shift
-// no longer keeps, compacting the chunks.
+// no longer keeps (no longer in t after rehash), compacting the chunks.
 func (h *Hashed) dropMore(t *table) {
 	var out [][]keySpot
 	for _, c := range t.more {
 		for _, ks := range c {
-			if h.kept(ks.key) {
+			if t.has(ks.key) {
 				out = appendChunked(out, ks)
 			}
 		}
@@ -258,6 +327,18 @@ func (h *Hashed) dropMore(t *table) {
 	t.more = out
 	t.extra += d
 	h.bytes += d
+}
+
+// has reports whether key is in t.
+func (t *table) has(key uint64) bool {
+	sg := &t.segs[key&(segments-1)]
+	mask := uint64(len(sg.keys) - 1)
+	for i := (key >> segmentBits) & mask; sg.keys[i] != 0; i = (i + 1) & mask {
+		if sg.keys[i] == key {
+			return true
+		}
+	}
+	return false
 }
 
 // appendChunked appends ks to the last chunk, starting a new one of
@@ -296,6 +377,8 @@ func (h *Hashed) Results(n int) []Result {
 	for li, t := range h.tabs {
 		l := &h.libs[li]
 		more := t.sortedMore()
+		var group []umiMol // molecules with a UMI group, collapsed below
+		var keys []umiMol  // FASTQ molecules with packed keys, likewise
 		for s := range t.segs {
 			sg := &t.segs[s]
 			for i, k := range sg.keys {
@@ -316,9 +399,19 @@ func (h *Hashed) Results(n int) []Result {
 						spots = append(spots, more[j].spot)
 					}
 				}
+				if sg.cls != nil && sg.sa[i] != 0 {
+					keys = append(keys, umiMol{group: sg.cls[i], umi: sg.sa[i], seqB: sg.sb[i], lib: int32(li), n: c, spots: slices.Clone(spots)})
+					continue
+				}
+				if sg.grp != nil && sg.grp[i] != 0 {
+					group = append(group, umiMol{group: sg.grp[i], umi: sg.umi[i], lib: int32(li), n: c, spots: slices.Clone(spots)})
+					continue
+				}
 				l.count(c, spots, h.opt.OpticalDistance)
 			}
 		}
+		collapseGroups(group, h.libs, h.opt.OpticalDistance)
+		collapseKeys(keys, l, h.opt.OpticalDistance)
 	}
 	return results(h.libs, n, h.shift)
 }

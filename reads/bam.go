@@ -209,7 +209,8 @@ func DecodeBAM(b []byte, nRef int, rec *Record) error {
 		p += 4
 	}
 	p += int(lSeq+1)/2 + int(lSeq)
-	rec.RG, rec.RX, rec.MC = nil, nil, nil
+	rec.RG, rec.MC, rec.samAux = nil, nil, nil
+	rec.bamAux = b[p:len(b):len(b)]
 	cg, err := scanAux(b[p:], rec)
 	if err != nil {
 		return err
@@ -234,73 +235,84 @@ func DecodeBAM(b []byte, nRef int, rec *Record) error {
 }
 
 // scanAux walks the optional fields (SAM specification section 4.2.4),
-// keeping RG, RX and MC and checking every length on the way. It returns
+// keeping RG and MC and checking every length on the way. It returns
 // the elements of a CG:B:I array (the real CIGAR of a long alignment).
 func scanAux(a []byte, rec *Record) (cg []byte, err error) {
 	for len(a) > 0 {
-		if len(a) < 3 {
-			return nil, fmt.Errorf("%w: optional field cut short", ErrBadRecord)
+		var f auxField
+		if f, a, err = nextAux(a); err != nil {
+			return nil, err
 		}
-		t0, t1, typ := a[0], a[1], a[2]
-		a = a[3:]
-		var size int
-		switch typ {
-		case 'A', 'c', 'C':
-			size = 1
-		case 's', 'S':
-			size = 2
-		case 'i', 'I', 'f':
-			size = 4
-		case 'Z', 'H':
-			i := bytes.IndexByte(a, 0)
-			if i < 0 {
-				return nil, fmt.Errorf("%w: optional field %c%c not NUL-terminated", ErrBadRecord, t0, t1)
-			}
-			if typ == 'Z' {
-				v := a[:i]
-				switch {
-				case t0 == 'R' && t1 == 'G':
-					rec.RG = v
-				case t0 == 'R' && t1 == 'X':
-					rec.RX = v
-				case t0 == 'M' && t1 == 'C':
-					rec.MC = v
-				}
-			}
-			a = a[i+1:]
-			continue
-		case 'B':
-			if len(a) < 5 {
-				return nil, fmt.Errorf("%w: array field %c%c cut short", ErrBadRecord, t0, t1)
-			}
-			var es int
-			switch a[0] {
-			case 'c', 'C':
-				es = 1
-			case 's', 'S':
-				es = 2
-			case 'i', 'I', 'f':
-				es = 4
-			default:
-				return nil, fmt.Errorf("%w: array field %c%c has element type %q", ErrBadRecord, t0, t1, a[0])
-			}
-			n := int64(binary.LittleEndian.Uint32(a[1:]))
-			total := 5 + n*int64(es)
-			if total > int64(len(a)) {
-				return nil, fmt.Errorf("%w: array field %c%c longer than the record", ErrBadRecord, t0, t1)
-			}
-			if t0 == 'C' && t1 == 'G' && (a[0] == 'I' || a[0] == 'i') {
-				cg = a[5:total]
-			}
-			a = a[total:]
-			continue
-		default:
-			return nil, fmt.Errorf("%w: optional field %c%c has unknown type %q", ErrBadRecord, t0, t1, typ)
+		switch {
+		case f.typ == 'Z' && f.tag == Tag{'R', 'G'}:
+			rec.RG = f.val
+		case f.typ == 'Z' && f.tag == Tag{'M', 'C'}:
+			rec.MC = f.val
+		case f.typ == 'B' && f.tag == Tag{'C', 'G'} && (f.val[0] == 'I' || f.val[0] == 'i'):
+			cg = f.val[5:]
 		}
-		if len(a) < size {
-			return nil, fmt.Errorf("%w: optional field %c%c cut short", ErrBadRecord, t0, t1)
-		}
-		a = a[size:]
 	}
 	return cg, nil
+}
+
+// auxField is one BAM optional field: val is a Z or H string without its
+// NUL, a B array with its subtype and count, or the bytes of a number or
+// character.
+type auxField struct {
+	tag Tag
+	typ byte
+	val []byte
+}
+
+// nextAux splits the first optional field off a, checking its length.
+func nextAux(a []byte) (auxField, []byte, error) {
+	if len(a) < 3 {
+		return auxField{}, nil, fmt.Errorf("%w: optional field cut short", ErrBadRecord)
+	}
+	f := auxField{tag: Tag{a[0], a[1]}, typ: a[2]}
+	a = a[3:]
+	var size int
+	switch f.typ {
+	case 'A', 'c', 'C':
+		size = 1
+	case 's', 'S':
+		size = 2
+	case 'i', 'I', 'f':
+		size = 4
+	case 'Z', 'H':
+		i := bytes.IndexByte(a, 0)
+		if i < 0 {
+			return f, nil, fmt.Errorf("%w: optional field %s not NUL-terminated", ErrBadRecord, f.tag)
+		}
+		f.val = a[:i]
+		return f, a[i+1:], nil
+	case 'B':
+		if len(a) < 5 {
+			return f, nil, fmt.Errorf("%w: array field %s cut short", ErrBadRecord, f.tag)
+		}
+		var es int
+		switch a[0] {
+		case 'c', 'C':
+			es = 1
+		case 's', 'S':
+			es = 2
+		case 'i', 'I', 'f':
+			es = 4
+		default:
+			return f, nil, fmt.Errorf("%w: array field %s has element type %q", ErrBadRecord, f.tag, a[0])
+		}
+		total := 5 + int64(binary.LittleEndian.Uint32(a[1:]))*int64(es)
+		if total > int64(len(a)) {
+			return f, nil, fmt.Errorf("%w: array field %s longer than the record", ErrBadRecord, f.tag)
+		}
+		f.val = a[:total]
+		return f, a[total:], nil
+	default:
+		return f, nil, fmt.Errorf("%w: optional field %s has unknown type %q", ErrBadRecord, f.tag, f.typ)
+	}
+	if len(a) < size {
+		return f, nil, fmt.Errorf("%w: optional field %s cut short", ErrBadRecord, f.tag)
+	}
+	f.val = a[:size]
+	return f, a[size:], nil
 }

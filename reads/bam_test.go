@@ -41,7 +41,7 @@ func TestDecodeBAM(t *testing.T) {
 		t.Fatal(err)
 	}
 	if r.Ref != 1 || r.Pos != 999 || r.MapQ != 60 || r.Flags != 0x63 || r.MateRef != 1 || r.MatePos != 1199 || r.SeqLen != 100 ||
-		string(r.Name) != "A1:1:FC:1:1101:10:20" || string(r.RG) != "lane1" || string(r.RX) != "ACGT-TTGA" || string(r.MC) != "5S95M" || len(r.Cigar) != 2 {
+		string(r.Name) != "A1:1:FC:1:1101:10:20" || string(r.RG) != "lane1" || string(r.Tag(Tag{'R', 'X'})) != "ACGT-TTGA" || string(r.Tag(Tag{'B', 'C'})) != "" || string(r.MC) != "5S95M" || len(r.Cigar) != 2 {
 		t.Errorf("decoded %+v", r)
 	}
 	// Corruptions of a valid record are errors, never panics.

@@ -198,7 +198,7 @@ func (f *inflater) block(b *bgzfBlock) error {
 	}
 	fr := f.fr
 	if err := fr.(flate.Resetter).Reset(bytes.NewReader(body), nil); err != nil {
-		return fmt.Errorf("flate: %v", err)
+		return fmt.Errorf("flate: %w", err)
 	}
 	d := b.data[:isize]
 	n, err := io.ReadFull(fr, d)
@@ -206,14 +206,14 @@ func (f *inflater) block(b *bgzfBlock) error {
 	case err == io.ErrUnexpectedEOF || err == io.EOF && isize > 0:
 		return errBGZFSize
 	case err != nil && err != io.EOF:
-		return fmt.Errorf("flate: %v", err)
+		return fmt.Errorf("flate: %w", err)
 	}
 	// The deflate stream must end exactly here.
 	var one [1]byte
 	if m, err := fr.Read(one[:]); m > 0 {
 		return errBGZFSize
 	} else if err != nil && err != io.EOF {
-		return fmt.Errorf("flate: %v", err)
+		return fmt.Errorf("flate: %w", err)
 	}
 	if crc32.ChecksumIEEE(d[:n]) != crc {
 		return errBGZFCRC

@@ -29,6 +29,7 @@ var ErrBadFASTQ = errors.New("reads: malformed FASTQ")
 // one 84 MB/s with 9 allocations per record (go test -bench, 2 cores;
 // BENCHMARKS.md).
 type FASTQReader struct {
+	in    *Input // checked at the end when not nil
 	r     io.Reader
 	buf   []byte
 	start int
@@ -37,6 +38,9 @@ type FASTQReader struct {
 	line  int64 // lines consumed
 	n     int64 // records read
 	err   error
+
+	peeked  []peeked // records Peek read ahead, owned copies
+	recLine int64    // first line of the last record returned
 }
 
 const fastqBufSize = 1 << 20
@@ -45,8 +49,18 @@ const fastqBufSize = 1 << 20
 // grow the buffer without limit.
 const maxFASTQRecord = maxBAMRecord // 256 MiB, as a BAM record
 
-// NewFASTQReader returns a reader of the FASTQ text in r.
-func NewFASTQReader(r io.Reader) *FASTQReader {
+// NewFASTQReader returns a reader of the FASTQ records of in. It reads
+// the decompressed stream without in's buffer (saving a copy of every
+// byte) and, like the BAM and SAM readers, checks at the end that the
+// file was not cut short (Input.CheckEnd) before returning io.EOF.
+func NewFASTQReader(in *Input) *FASTQReader {
+	f := newFASTQReader(in.Unbuffered())
+	f.in = in
+	return f
+}
+
+// newFASTQReader reads FASTQ text from r with no end check.
+func newFASTQReader(r io.Reader) *FASTQReader {
 	return &FASTQReader{r: r, buf: make([]byte, fastqBufSize)}
 }
 
@@ -55,6 +69,10 @@ func (f *FASTQReader) Records() int64 { return f.n }
 
 // Line returns the number of lines read so far.
 func (f *FASTQReader) Line() int64 { return f.line }
+
+// RecordLine returns the first line of the record the last Read or Peek
+// returned.
+func (f *FASTQReader) RecordLine() int64 { return f.recLine }
 
 // fill reads more data, keeping buf[start:end].
 func (f *FASTQReader) fill() error {
@@ -80,12 +98,32 @@ func (f *FASTQReader) fill() error {
 	return err
 }
 
+// peeked is a record read ahead by Peek.
+type peeked struct {
+	rec  FASTQRecord
+	line int64
+}
+
 // Read reads the next record into rec. It returns io.EOF after the last.
 func (f *FASTQReader) Read(rec *FASTQRecord) error {
+	if len(f.peeked) > 0 {
+		*rec, f.recLine = f.peeked[0].rec, f.peeked[0].line
+		f.peeked = f.peeked[1:]
+		return nil
+	}
+	return f.next(rec)
+}
+
+func (f *FASTQReader) next(rec *FASTQRecord) error {
 	if f.err != nil {
 		return f.err
 	}
 	if err := f.read(rec); err != nil {
+		if err == io.EOF && f.in != nil {
+			if e := f.in.CheckEnd(); e != nil {
+				err = e
+			}
+		}
 		if err != io.EOF {
 			var pe *ParseError
 			if !errors.As(err, &pe) {
@@ -96,6 +134,26 @@ func (f *FASTQReader) Read(rec *FASTQRecord) error {
 		return err
 	}
 	return nil
+}
+
+// Peek returns the i-th record ahead (0 is the next) without consuming
+// it: Read returns it in turn. The record is a copy that stays valid.
+func (f *FASTQReader) Peek(i int) (*FASTQRecord, error) {
+	for len(f.peeked) <= i {
+		var rec FASTQRecord
+		if err := f.next(&rec); err != nil {
+			return nil, err
+		}
+		own := func(b []byte) []byte {
+			if b == nil {
+				return nil
+			}
+			return append([]byte{}, b...)
+		}
+		rec = FASTQRecord{Name: own(rec.Name), Comment: own(rec.Comment), Seq: own(rec.Seq), Qual: own(rec.Qual)}
+		f.peeked = append(f.peeked, peeked{rec, f.recLine})
+	}
+	return &f.peeked[i].rec, nil
 }
 
 func (f *FASTQReader) read(rec *FASTQRecord) error {
@@ -166,6 +224,7 @@ func (f *FASTQReader) read(rec *FASTQRecord) error {
 		h = h[:i]
 	}
 	rec.Name, rec.Seq, rec.Qual = h, lines[1], lines[3]
+	f.recLine = first
 	f.start = ends[3] + 1
 	if f.start > f.end {
 		f.start = f.end

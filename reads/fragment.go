@@ -13,7 +13,19 @@ import (
 type Fragment struct {
 	Library int
 	Key     uint64 // 64-bit hash of the molecule key; never 0
-	Spot    Spot
+	// Group is the hash of the key without its UMI, and UMI the UMI packed
+	// by UMICode, when UMI errors are to be collapsed (KeyOptions.Collapse)
+	// and the UMI packs; both 0 otherwise. Molecules of one Group are the
+	// UMIs seen at one position.
+	Group uint64
+	UMI   uint64
+	// Class, SeqA and SeqB are set for a FASTQ key whose leading bases
+	// pack (UMICode, KeyBases from 1 to MaxPackedKey): the hash of the
+	// library and UMI, and the packed leading bases of the two mates (SeqB
+	// 0 for a single read), for merging keys one base apart.
+	Class      uint64
+	SeqA, SeqB uint64
+	Spot       Spot
 	// LowRef and LowPos are the reference and unclipped 5' coordinate of
 	// the key's lower end (its only end for a single read). The record
 	// that counts a copy of the same molecule cannot start after LowPos
@@ -29,15 +41,22 @@ type Fragment struct {
 }
 
 // KeyOptions say how records become molecule keys. The zero value counts
-// every primary mapped record, with UMIs from RX only.
+// every primary mapped record, without UMIs or cells.
 type KeyOptions struct {
 	// MinMapQ skips records with a lower mapping quality.
 	MinMapQ int
+	// UMITags are the tags a UMI is taken from, the first one a record has
+	// (for FASTQ, TAG:Z: words of the header comment, CommentTag).
+	UMITags []Tag
 	// UMIFromName takes the UMI from the read name (NameUMI) when a record
-	// has no RX tag.
+	// has none of UMITags.
 	UMIFromName bool
-	// NoUMI ignores UMIs altogether, RX tags included.
-	NoUMI bool
+	// CellTag, when not zero, is the tag of the cell barcode, which is then
+	// part of the molecule key.
+	CellTag Tag
+	// Collapse fills Fragment.Group and Fragment.UMI, for collapsing UMI
+	// sequencing errors (package dedup).
+	Collapse bool
 	// KeyBases is the number of leading bases of each FASTQ mate in the
 	// key; 0 means the whole read.
 	KeyBases int
@@ -56,6 +75,60 @@ type Keyer struct {
 	PairsNoMC   int64   // pairs whose mate end was taken as PNEXT (no MC tag)
 	NoMC        []int64 // PairsNoMC by library
 	MaxLeadClip int64   // longest leading clip (S+H) of a forward read seen
+	Fragments   int64   // fragments returned
+	NoUMI       int64   // of them, fragments without a UMI
+	NoCell      int64   // of them, fragments without the cell tag (when CellTag is set)
+	// OtherUMITags counts, among the first UMISample fragments without a
+	// UMI, those that carry one of the tags other pipelines write UMIs in
+	// (CommonUMITags), by tag.
+	OtherUMITags map[Tag]int64
+}
+
+// UMISample is the number of fragments without a UMI that are searched
+// for CommonUMITags (OtherUMITags).
+const UMISample = 1 << 16
+
+// CommonUMITags are tags in which pipelines commonly write UMIs (common
+// practice): RX and OX (SAM optional-fields specification: corrected and
+// raw UMI), BX, UB and UR, MI (molecular identifier).
+var CommonUMITags = []Tag{{'R', 'X'}, {'O', 'X'}, {'B', 'X'}, {'U', 'B'}, {'U', 'R'}, {'M', 'I'}}
+
+// umi returns a record's UMI by the options, and tallies it.
+func (k *Keyer) umi(tag func(Tag) []byte, name []byte) []byte {
+	for _, t := range k.Opt.UMITags {
+		if v := tag(t); v != nil {
+			return v
+		}
+	}
+	if k.Opt.UMIFromName {
+		if v := NameUMI(name); v != nil {
+			return v
+		}
+	}
+	k.NoUMI++
+	if k.NoUMI <= UMISample { // a sample is enough for a note
+		for _, t := range CommonUMITags {
+			if tag(t) != nil {
+				if k.OtherUMITags == nil {
+					k.OtherUMITags = map[Tag]int64{}
+				}
+				k.OtherUMITags[t]++
+			}
+		}
+	}
+	return nil
+}
+
+// group sets f.Key from h and the UMI, and f.Group and f.UMI when UMI
+// errors are collapsed.
+func (k *Keyer) group(f *Fragment, h uint64, umi []byte) {
+	f.Key = finish(h, umi)
+	k.Fragments++
+	if k.Opt.Collapse && umi != nil {
+		if c := UMICode(umi); c != 0 {
+			f.Group, f.UMI = finish(h, nil), c
+		}
+	}
 }
 
 // Skip flags: unmapped, secondary, QC-failed, supplementary (DESIGN.md).
@@ -81,20 +154,14 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 			k.MaxLeadClip = c
 		}
 	}
-	umi := rec.RX
-	if umi == nil && k.Opt.UMIFromName {
-		umi = NameUMI(rec.Name)
-	}
-	if k.Opt.NoUMI {
-		umi = nil
-	}
 	f := Fragment{Library: lib}
 	if k.Opt.OpticalNames {
 		f.Spot = ParseSpot(rec.Name)
 	}
 	paired := rec.Flags&FlagPaired != 0 && rec.Flags&FlagMateUnmapped == 0 && rec.MateRef >= 0 && rec.MatePos >= 0
 	if !paired {
-		f.Key = finish(mix(mix(mix(mix(seed1, uint64(lib)), uint64(rec.Ref)), uint64(end)), strand(rev)), umi)
+		h := k.cell(mix(mix(mix(mix(seed1, uint64(lib)), uint64(rec.Ref)), uint64(end)), strand(rev)), rec.Tag)
+		k.group(&f, h, k.umi(rec.Tag, rec.Name))
 		f.LowRef, f.LowPos = rec.Ref, end
 		return f, true
 	}
@@ -129,10 +196,22 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 	}
 	h := mix(mix(seed2, uint64(lib)), uint64(a.ref))
 	h = mix(mix(mix(h, uint64(a.pos)), strand(a.rev)), uint64(b.ref))
-	h = mix(mix(h, uint64(b.pos)), strand(b.rev))
-	f.Key = finish(h, umi)
+	h = k.cell(mix(mix(h, uint64(b.pos)), strand(b.rev)), rec.Tag)
+	k.group(&f, h, k.umi(rec.Tag, rec.Name))
 	f.LowRef, f.LowPos = a.ref, a.pos
 	return f, true
+}
+
+// cell mixes the cell barcode into h when CellTag is set.
+func (k *Keyer) cell(h uint64, tag func(Tag) []byte) uint64 {
+	if k.Opt.CellTag == (Tag{}) {
+		return h
+	}
+	c := tag(k.Opt.CellTag)
+	if c == nil {
+		k.NoCell++
+	}
+	return hashBytes(mix(h, seed5), c)
 }
 
 func (k *Keyer) noMC(lib int) {
@@ -159,33 +238,43 @@ func (e end5) less(o end5) bool {
 	return !e.rev && o.rev
 }
 
+// MaxPackedKey is the most leading bases per mate that a FASTQ key packs
+// into Fragment.SeqA and SeqB (UMICode).
+const MaxPackedKey = 28
+
 // FASTQ returns the fragment of a single read (r2 nil) or a read pair:
 // the key is the leading KeyBases bases of each mate, the mates taken as
 // an unordered pair (a copy read from the other strand swaps R1 and R2,
-// as an alignment key's unordered ends do), plus the UMI.
+// as an alignment key's unordered ends do), plus the UMI. With KeyBases
+// from 1 to MaxPackedKey it also sets Class, SeqA and SeqB.
 func (k *Keyer) FASTQ(r1, r2 *FASTQRecord, lib int) Fragment {
 	f := Fragment{Library: lib}
 	if k.Opt.OpticalNames {
 		f.Spot = ParseSpot(r1.Name)
 	}
-	umi := CommentUMI(r1.Comment)
-	if umi == nil && k.Opt.UMIFromName {
-		umi = NameUMI(r1.Name)
-	}
-	if k.Opt.NoUMI {
-		umi = nil
-	}
+	umi := k.umi(func(t Tag) []byte { return CommentTag(r1.Comment, t) }, r1.Name)
 	s1 := prefix(r1.Seq, k.Opt.KeyBases)
+	var s2 []byte
 	if r2 == nil {
-		f.Key = finish(hashBytes(mix(seed3, uint64(lib)), s1), umi)
-		return f
+		k.group(&f, hashBytes(mix(seed3, uint64(lib)), s1), umi)
+	} else {
+		s2 = prefix(r2.Seq, k.Opt.KeyBases)
+		if bytes.Compare(s2, s1) < 0 {
+			s1, s2 = s2, s1
+		}
+		h := hashBytes(mix(seed4, uint64(lib)), s1)
+		k.group(&f, hashBytes(h, s2), umi)
 	}
-	s2 := prefix(r2.Seq, k.Opt.KeyBases)
-	if bytes.Compare(s2, s1) < 0 {
-		s1, s2 = s2, s1
+	f.Group, f.UMI = 0, 0 // FASTQ UMIs are matched exactly
+	if k.Opt.KeyBases > 0 && k.Opt.KeyBases <= MaxPackedKey {
+		a, b := UMICode(s1), uint64(0)
+		if r2 != nil {
+			b = UMICode(s2)
+		}
+		if a != 0 && (r2 == nil || b != 0) {
+			f.Class, f.SeqA, f.SeqB = finish(mix(seed6, uint64(lib)), umi), a, b
+		}
 	}
-	h := hashBytes(mix(seed4, uint64(lib)), s1)
-	f.Key = finish(hashBytes(h, s2), umi)
 	return f
 }
 
@@ -207,6 +296,8 @@ const (
 	seed2  = 0x13198A2E03707344 // paired alignment keys
 	seed3  = 0xA4093822299F31D0 // single FASTQ keys
 	seed4  = 0x082EFA98EC4E6C89 // paired FASTQ keys
+	seed5  = 0x452821E638D01377 // cell barcodes
+	seed6  = 0xBE5466CF34E90C6C // FASTQ key classes
 )
 
 func mix(h, v uint64) uint64 {
@@ -264,4 +355,50 @@ func countsTie(flags uint16, rev, mrev bool) bool {
 		return !rev
 	}
 	return true
+}
+
+// UMICode packs a UMI of A, C, G and T (upper or lower case; '-' and '+'
+// joining dual UMIs are skipped) into 64 bits: two bits a base in the low
+// 56 bits, the first base highest, and the number of bases above them, so
+// that codes compare as (length, then the bases in alphabetical order). It returns 0 for a UMI that
+// does not pack (another letter such as N, more than 28 bases, or none):
+// such a UMI is matched exactly and never collapsed.
+func UMICode(umi []byte) uint64 {
+	var c, n uint64
+	for _, b := range umi {
+		var v uint64
+		switch b {
+		case 'A', 'a':
+			v = 0
+		case 'C', 'c':
+			v = 1
+		case 'G', 'g':
+			v = 2
+		case 'T', 't':
+			v = 3
+		case '-', '+':
+			continue
+		default:
+			return 0
+		}
+		if n == 28 {
+			return 0
+		}
+		c = c<<2 | v
+		n++
+	}
+	if n == 0 {
+		return 0
+	}
+	return c | n<<56
+}
+
+// UMIDistance1 reports whether two UMICodes differ at exactly one base
+// (Hamming distance 1; UMIs of different lengths are never neighbours).
+func UMIDistance1(a, b uint64) bool {
+	if a>>56 != b>>56 {
+		return false
+	}
+	x := a ^ b
+	return bits.OnesCount64((x|x>>1)&0x0055555555555555) == 1
 }

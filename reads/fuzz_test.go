@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -26,6 +27,14 @@ func FuzzDecodeBAM(f *testing.F) {
 			t.Fatalf("accepted an impossible record: %+v", rec)
 		}
 		_ = Unclipped5(rec.Pos, rec.Cigar, rec.Flags&FlagReverse != 0)
+		for _, tag := range []Tag{{'R', 'X'}, {'C', 'B'}, {'U', 'B'}, {'X', 'A'}} {
+			if v := rec.Tag(tag); len(v) > len(b) {
+				t.Fatalf("tag %s longer than the record", tag)
+			}
+		}
+		var k Keyer
+		k.Opt = KeyOptions{UMITags: []Tag{{'B', 'X'}, {'R', 'X'}}, UMIFromName: true, CellTag: Tag{'C', 'B'}, Collapse: true, OpticalNames: true}
+		k.Alignment(&rec, 0)
 	})
 }
 
@@ -47,7 +56,8 @@ func FuzzParseSAMLine(f *testing.F) {
 		_ = Unclipped5(rec.Pos, rec.Cigar, rec.Flags&FlagReverse != 0)
 		_, _ = ParseSpot(rec.Name), NameUMI(rec.Name)
 		var k Keyer
-		k.Opt.OpticalNames, k.Opt.UMIFromName = true, true
+		k.Opt.OpticalNames, k.Opt.UMIFromName, k.Opt.Collapse = true, true, true
+		k.Opt.UMITags, k.Opt.CellTag = []Tag{{'R', 'X'}, {'B', 'X'}}, Tag{'C', 'B'}
 		k.Alignment(&rec, 0)
 	})
 }
@@ -55,7 +65,7 @@ func FuzzParseSAMLine(f *testing.F) {
 func FuzzFASTQ(f *testing.F) {
 	f.Add([]byte("@r1\nACGT\n+\nIIII\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		r := NewFASTQReader(bytes.NewReader(data))
+		r := newFASTQReader(bytes.NewReader(data))
 		var rec FASTQRecord
 		for i := 0; ; i++ {
 			err := r.Read(&rec)
@@ -71,6 +81,52 @@ func FuzzFASTQ(f *testing.F) {
 			if i > len(data) {
 				t.Fatalf("more records than bytes")
 			}
+		}
+	})
+}
+
+// FuzzFASTQPairs reads FASTQ text as an interleaved file after peeking at
+// its first two records, as headroom reads does, and parses mate numbers
+// and comment tags: errors or pairs, never a panic, a mismatch that slips
+// through or a record of the wrong length.
+func FuzzFASTQPairs(f *testing.F) {
+	f.Add([]byte("@r1/1\nACGT\n+\nIIII\n@r1/2\nTTGA\n+\nIIII\n"))
+	f.Add([]byte("@r1 1:N:0:AC RX:Z:AAC\nACGT\n+\nIIII\n@r1 2:N:0:AC\nTTGA\n+\nIIII\n@r2 1:N:0\nA\n+\nI\n"))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		r := newFASTQReader(bytes.NewReader(data))
+		for i := 0; i < 2; i++ {
+			rec, err := r.Peek(i)
+			if err != nil {
+				break
+			}
+			_ = MateNumber(rec.Name, rec.Comment)
+			_ = CommentTag(rec.Comment, Tag{'R', 'X'})
+		}
+		p := NewInterleavedReader(r, "x")
+		var a, b FASTQRecord
+		for {
+			err := p.Read(&a, &b)
+			if err != nil {
+				if err != io.EOF && p.Read(&a, &b) != err {
+					t.Fatalf("error not sticky")
+				}
+				return
+			}
+			if !bytes.Equal(MateName(a.Name), MateName(b.Name)) || len(a.Seq) != len(a.Qual) || len(b.Seq) != len(b.Qual) {
+				t.Fatalf("bad pair %q %q", a.Name, b.Name)
+			}
+		}
+	})
+}
+
+// FuzzFASTQName parses arbitrary file names as instrument FASTQ names.
+func FuzzFASTQName(f *testing.F) {
+	f.Add("LIB7_S3_L001_R1_001.fastq.gz")
+	f.Add("a_b_S12_R2_001.fq")
+	f.Fuzz(func(t *testing.T, name string) {
+		n, ok := ParseFASTQName(name)
+		if ok && (n.Sample == "" || n.Read < 1 || n.Read > 2 || n.Lane < 0 || !strings.HasPrefix(name, n.Sample+"_S")) {
+			t.Fatalf("%q parsed as %+v", name, n)
 		}
 	})
 }
@@ -105,7 +161,7 @@ func FuzzOpen(f *testing.F) {
 			for r.Read(&rec) == nil {
 			}
 		case FormatFASTQ:
-			r := NewFASTQReader(in.Reader())
+			r := NewFASTQReader(in)
 			var rec FASTQRecord
 			for r.Read(&rec) == nil {
 			}

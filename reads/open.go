@@ -6,7 +6,9 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"strings"
 
+	"github.com/klauspost/compress/flate"
 	"github.com/klauspost/compress/gzip"
 )
 
@@ -163,6 +165,8 @@ func Open(r io.Reader, threads int) (*Input, error) {
 		}
 		if bytes.Count(line, []byte{'\t'}) >= 10 && isText(line) {
 			in.Format = FormatSAM
+		} else if what, use := tableKind(in.r); what != "" {
+			return nil, fmt.Errorf("%w: this looks like %s; use %s", ErrUnknown, what, use)
 		} else {
 			return nil, fmt.Errorf("%w (first bytes %q); give a BAM, SAM or FASTQ file, plain or gzip-compressed", ErrUnknown, printable(b))
 		}
@@ -203,6 +207,59 @@ func (in *Input) Close() error {
 	return nil
 }
 
+// tableKind recognises the tables of the other headroom commands given
+// to the reads reader by mistake: a BIOM table (JSON, BIOM 1.0; or HDF5,
+// BIOM 2, by the HDF5 file signature) or a delimited taxon table (a first
+// column named like #OTU ID, taxon, ASV, feature or sample with many
+// columns) for headroom taxa; a frequency table (columns such as
+// times_seen and units, or rows of two or three numbers) for headroom
+// counts. It returns "" when the text is none of them.
+func tableKind(r *bufio.Reader) (what, use string) {
+	head, _ := r.Peek(4096)
+	if bytes.HasPrefix(head, []byte("\x89HDF")) {
+		return "a BIOM 2 (HDF5) taxon table", "headroom taxa"
+	}
+	t := bytes.TrimLeft(head, " \t\r\n")
+	if len(t) > 0 && t[0] == '{' && (bytes.Contains(t, []byte("Biological Observation Matrix")) || bytes.Contains(t, []byte("\"rows\""))) {
+		return "a BIOM taxon table", "headroom taxa"
+	}
+	if !isText(bytes.ReplaceAll(head, []byte{'\n'}, nil)) {
+		return "", ""
+	}
+	for _, line := range bytes.Split(head, []byte{'\n'}) {
+		line = bytes.TrimRight(line, "\r")
+		low := bytes.ToLower(line)
+		if len(line) == 0 || line[0] == '#' && !bytes.HasPrefix(low, []byte("#otu")) {
+			continue
+		}
+		f := bytes.FieldsFunc(low, func(c rune) bool { return c == '\t' || c == ',' })
+		if len(f) == 0 {
+			return "", ""
+		}
+		first := string(bytes.Trim(f[0], "\" #"))
+		switch {
+		case bytes.Contains(low, []byte("times_seen")) || bytes.Contains(low, []byte("frequency")) && len(f) <= 4:
+			return "a frequency table", "headroom counts"
+		case len(f) >= 3 && (strings.HasPrefix(first, "otu") || strings.HasPrefix(first, "taxon") || strings.HasPrefix(first, "asv") ||
+			strings.HasPrefix(first, "feature") || strings.HasPrefix(first, "sample")):
+			return "a taxon table", "headroom taxa"
+		case len(f) >= 2 && len(f) <= 3 && numeric(f):
+			return "a frequency table", "headroom counts"
+		}
+		return "", ""
+	}
+	return "", ""
+}
+
+func numeric(fields [][]byte) bool {
+	for _, f := range fields {
+		if _, ok := atoi(bytes.TrimSpace(f), 1<<62); !ok {
+			return false
+		}
+	}
+	return true
+}
+
 func isText(b []byte) bool {
 	for _, c := range b {
 		if c < 0x20 && c != '\t' && c != '\r' || c > 0x7e {
@@ -233,11 +290,12 @@ func wrapInflate(err error) error {
 	case errors.Is(err, gzip.ErrChecksum), errors.Is(err, errBGZFCRC):
 		return fmt.Errorf("reads: compressed data corrupted (CRC mismatch); re-copy or regenerate the file")
 	case errors.Is(err, gzip.ErrHeader), errors.Is(err, errBGZFHeader), errors.Is(err, errBGZFSize):
-		return fmt.Errorf("reads: compressed data corrupted (%v); re-copy or regenerate the file", err)
+		return fmt.Errorf("reads: compressed data corrupted (%w); re-copy or regenerate the file", err)
 	}
-	var ce interface{ Error() string }
-	if errors.As(err, &ce) && bytes.Contains([]byte(err.Error()), []byte("flate")) {
-		return fmt.Errorf("reads: compressed data corrupted (%v); re-copy or regenerate the file", err)
+	var corrupt flate.CorruptInputError
+	var internal flate.InternalError
+	if errors.As(err, &corrupt) || errors.As(err, &internal) {
+		return fmt.Errorf("reads: compressed data corrupted (%w); re-copy or regenerate the file", err)
 	}
 	return err
 }

@@ -3,6 +3,7 @@ package reads
 import (
 	"errors"
 	"fmt"
+	"headroom/internal/inerr"
 )
 
 // Flag bits of the SAM FLAG field (SAM specification section 1.4).
@@ -35,13 +36,16 @@ type Record struct {
 	MatePos int32 // 0-based, -1 when absent
 	SeqLen  int32
 
-	// Optional fields; nil when the record does not have them.
+	// Optional fields; nil when the record does not have them. Others are
+	// found with Tag.
 	RG []byte
-	RX []byte
 	MC []byte // the mate's CIGAR text (MC:Z); "*" counts as absent
 
 	// MateCigar is MC parsed, set by the readers when MC is not nil.
 	MateCigar []CigarOp
+
+	bamAux []byte // the optional fields of a BAM record, checked
+	samAux []byte // the optional fields of a SAM line
 }
 
 // parseMC parses the MC tag the readers stored in rec.MC into
@@ -212,22 +216,22 @@ func ParseCigar(dst []CigarOp, s []byte) ([]CigarOp, error) {
 	return dst, nil
 }
 
-// ParseError is bad input at a position of a file: Line for text formats
-// (1-based), Record for BAM (1-based record number). Either may be zero.
-type ParseError struct {
-	Line   int64
-	Record int64
-	Err    error
+// ParseError is bad input at a position of a file, the shape every reader
+// of the project returns (internal/inerr, as encoding/csv's ParseError):
+// Line for text formats (1-based), Column within it (1-based field; 0 when
+// the whole line or record is at fault), Record for binary formats
+// (1-based record number). Any of them may be zero. Match it with
+// errors.As and the cause with errors.Is (Err is one of the package's
+// sentinel errors, wrapped).
+type ParseError = inerr.ParseError
+
+// FileError is an error of one named input: File is the name the caller
+// gave it (a path, or "stdin"), Err the cause, usually a *ParseError.
+type FileError struct {
+	File string
+	Err  error
 }
 
-func (e *ParseError) Error() string {
-	switch {
-	case e.Line > 0:
-		return fmt.Sprintf("line %d: %v", e.Line, e.Err)
-	case e.Record > 0:
-		return fmt.Sprintf("record %d: %v", e.Record, e.Err)
-	}
-	return e.Err.Error()
-}
+func (e *FileError) Error() string { return e.File + ": " + e.Err.Error() }
 
-func (e *ParseError) Unwrap() error { return e.Err }
+func (e *FileError) Unwrap() error { return e.Err }

@@ -175,3 +175,54 @@ func mustCigar(t *testing.T, s string) []CigarOp {
 	}
 	return c
 }
+
+// TestReadNameConventions: mate numbers (a "/1" "/2" suffix, or the CASAVA
+// 1.8 comment "1:N:0:INDEX"), instrument file names
+// (NAME_S#_L00#_R#_001.fastq.gz) and patterned flow cells, the layouts of
+// common practice described in reads/name.go.
+func TestReadNameConventions(t *testing.T) {
+	for _, c := range []struct {
+		name, comment string
+		mate          int
+	}{
+		{"r1/1", "", 1}, {"r1/2", "BC:Z:ACGT", 2}, {"A1:7:FC:1:1101:10:20", "2:N:0:ACGTAC", 2},
+		{"A1:7:FC:1:1101:10:20", "1:Y:18:7", 1}, {"r1", "3:N:0", 0}, {"r1", "", 0}, {"r1/3", "", 0},
+	} {
+		if got := MateNumber([]byte(c.name), []byte(c.comment)); got != c.mate {
+			t.Errorf("MateNumber(%q, %q) = %d, want %d", c.name, c.comment, got, c.mate)
+		}
+	}
+	for _, c := range []struct {
+		file string
+		want FASTQName
+		ok   bool
+	}{
+		{"LIB7_S3_L001_R1_001.fastq.gz", FASTQName{"LIB7", 1, 1}, true},
+		{"liver_3_S12_L004_R2_001.fq", FASTQName{"liver_3", 4, 2}, true},
+		{"LIB7_S3_R2_001.fastq.gz", FASTQName{"LIB7", 0, 2}, true},
+		{"LIB7_S3_L001_I1_001.fastq.gz", FASTQName{}, false},
+		{"LIB7_R1.fastq.gz", FASTQName{}, false},
+		{"S3_L001_R1_001.fastq.gz", FASTQName{}, false},
+		{"LIB7_S3_L001_R1_001.bam", FASTQName{}, false},
+	} {
+		got, ok := ParseFASTQName(c.file)
+		if ok != c.ok || ok && got != c.want {
+			t.Errorf("ParseFASTQName(%q) = %+v, %v; want %+v, %v", c.file, got, ok, c.want, c.ok)
+		}
+	}
+	for _, c := range []struct {
+		name string
+		want bool
+	}{
+		{"INV01:12:HVKNWDSXY:2:1101:5005:1000", true},   // NovaSeq-style flow cell ID
+		{"INV01:3:H3TCKCCXY:4:1216:12000:3000/1", true}, // HiSeq X-style
+		{"INV01:9:FCE77:1:2471:1200:3000", true},        // 71 tiles in a swath
+		{"INV01:9:FCE77:1:2116:1200:3000", false},       // HiSeq 2500 numbering
+		{"INV01:9:C6FD4ANXX:1:1101:1200:3000", false},   // HiSeq 2500 v4 flow cell ID
+		{"INV01:1101:1200:3000", false},
+	} {
+		if got, _, _ := Patterned([]byte(c.name)); got != c.want {
+			t.Errorf("Patterned(%q) = %v, want %v", c.name, got, c.want)
+		}
+	}
+}

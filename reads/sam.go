@@ -193,7 +193,8 @@ func ParseSAMLine(line []byte, h *Header, rec *Record) error {
 	if len(rec.Cigar) > 0 && rec.SeqLen > 0 && QueryLen(rec.Cigar) != int64(rec.SeqLen) {
 		return fmt.Errorf("%w: CIGAR %q accounts for %d bases, SEQ has %d", ErrBadCigar, f[5], QueryLen(rec.Cigar), rec.SeqLen)
 	}
-	rec.RG, rec.RX, rec.MC = nil, nil, nil
+	rec.RG, rec.MC, rec.bamAux = nil, nil, nil
+	rec.samAux = rest
 	for len(rest) > 0 {
 		var t []byte
 		if j := bytes.IndexByte(rest, '\t'); j >= 0 {
@@ -210,8 +211,6 @@ func ParseSAMLine(line []byte, h *Header, rec *Record) error {
 		switch {
 		case t[0] == 'R' && t[1] == 'G':
 			rec.RG = t[5:]
-		case t[0] == 'R' && t[1] == 'X':
-			rec.RX = t[5:]
 		case t[0] == 'M' && t[1] == 'C':
 			rec.MC = t[5:]
 		}

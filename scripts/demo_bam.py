@@ -16,7 +16,11 @@ molecule's weight is gamma-distributed), so duplicates follow a realistic
 frequency pattern. Copies of a molecule are clipped differently, are read
 from either strand, and some sit next to an earlier copy on the flow cell
 (optical duplicates). Some records are secondary, supplementary, QC-failed,
-unmapped, or have an unmapped mate, as in real aligner output.
+unmapped, or have an unmapped mate, as in real aligner output. As a current
+aligner and mate-fixing step write them, every pair carries the mate's
+CIGAR (MC) and the header has @HD VN:1.6 SO:coordinate, @SQ with lengths,
+one @RG per lane and library, and an @PG line, so headroom's notes speak
+about the libraries, not about the file.
 
 Usage: /usr/bin/python3 scripts/demo_bam.py [OUT.bam] [--seed N]
 Then:  headroom reads testdata/demo/qc_run.bam
@@ -54,6 +58,7 @@ def main():
     out = args[0] if args else os.path.join(os.path.dirname(__file__), "..", "testdata", "demo", "qc_run.bam")
     os.makedirs(os.path.dirname(os.path.abspath(out)), exist_ok=True)
     g = Gen(seed)
+    g.no_mc = 0.0  # MC on every pair, as current pipelines write
     g.refs = [("contig1", 4_000_000), ("contig2", 3_000_000), ("contig3", 2_000_000), ("contig4", 1_000_000)]
     g.seq = {}  # the demo's SEQ is random; no reference sequence is needed
     rng = np.random.default_rng(seed)
@@ -112,7 +117,9 @@ def main():
         h = f.header.to_dict()
     h["RG"] = [{"ID": rg, "LB": lib, "SM": lib.replace("LIB", "SAMPLE"), "PL": "ILLUMINA", "PU": rg, "CN": "NGC"}
                for lib, rgs, _, _, _ in LIBRARIES for rg in rgs]
-    h["PG"] = [{"ID": "demo_bam.py", "PN": "demo_bam.py", "DS": "simulated QC pass, invented data"}]
+    h["HD"] = {"VN": "1.6", "SO": "coordinate"}
+    h["PG"] = [{"ID": "demo_bam.py", "PN": "demo_bam.py", "VN": "2", "CL": "scripts/demo_bam.py --seed %d" % seed,
+                "DS": "simulated QC pass, invented data"}]
     h["SQ"] = [{"SN": n, "LN": l} for n, l in hdr_refs]
     with pysam.AlignmentFile(tmp, "rb") as f, pysam.AlignmentFile(out, "wb", header=h) as o:
         for a in f.fetch(until_eof=True):

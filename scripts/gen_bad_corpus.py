@@ -7,7 +7,9 @@ cases.tsv that cmd/headroom/badinput_test.go runs.
 Standard library only. Every file is invented and built here from the
 format's specification (BAM and BGZF: SAM specification sections 4.1-4.2;
 gzip: RFC 1952; BIOM 1.0: the biom-format.org JSON description; HDF5: the
-file signature of the HDF5 file format specification). Output is
+file signature of the HDF5 file format specification; BIOM 2.1 files are
+copied or cut from testdata/taxa/biom2/, written by
+scripts/biom2_fixtures.py with python3-biom-format and python3-h5py). Output is
 deterministic: re-running the script rewrites identical files.
 
 Manifest columns (tab-separated, one header line, '#' lines are comments):
@@ -334,6 +336,37 @@ put("fq_empty.fastq.gz", gz(b""))
 case("fq_empty_gz", "reads @fq_empty.fastq.gz", 1, "empty",
      "a gzip member holding zero bytes")
 
+# FASTQ mates and tags (reads): names of the CASAVA 1.8 layout, common practice.
+def fq_pairs(first, n, mate):
+    return "".join("@INV03:2:FCD11:1:1101:%d:%d %d:N:0:ACGT\n%s\n+\n%s\n"
+                   % (1000 + i, 2000 + i, mate, "ACGTTGCA"[i % 8:] + "ACGT" * 4, "I" * (len("ACGTTGCA"[i % 8:]) + 16))
+                   for i in range(first, first + n))
+
+
+put("BAD1_S1_L001_R1_001.fastq", fq_pairs(0, 6, 1))
+put("BAD1_S1_L001_R2_001.fastq", fq_pairs(3, 6, 2))
+case("fq_mates_unpaired", "reads @BAD1_S1_L001_R1_001.fastq @BAD1_S1_L001_R2_001.fastq", 1,
+     "cannot be paired",
+     "R1 and R2 files of one sample and lane whose first reads differ (R2 starts three reads later)")
+
+lines1, lines2 = fq_pairs(0, 3, 1).splitlines(True), fq_pairs(0, 3, 2).splitlines(True)
+inter = "".join("".join(lines1[4 * i:4 * i + 4]) + "".join(lines2[4 * i:4 * i + 4]) for i in range(3))
+put("fq_interleaved_odd.fq", inter + "".join(fq_pairs(3, 1, 1)))
+case("fq_interleaved_odd", "reads @fq_interleaved_odd.fq", 1, "fq_interleaved_odd.fq:25: the interleaved file ends with an unpaired record",
+     "an interleaved file (mates in turn) with 7 records")
+
+put("fq_cell_tag.fq", fq_pairs(0, 4, 1))
+case("fq_cell_tag", "reads --cell-tag CB @fq_cell_tag.fq", 1, "fq_cell_tag.fq: FASTQ has no cell barcodes: --cell-tag CB",
+     "--cell-tag given with FASTQ input")
+put("reads_freq_table.tsv", "sample\ttimes_seen\tunits\nLIB-1\t1\t5210\nLIB-1\t2\t733\n")
+case("reads_freq_table", "reads @reads_freq_table.tsv", 1, "this looks like a frequency table; use headroom counts",
+     "a frequency table (headroom counts input) given to headroom reads")
+put("reads_taxa_table.tsv", "#OTU ID\tPOND-A\tPOND-B\nASV1\t12\t0\nASV2\t3\t8\n")
+case("reads_taxa_table", "reads @reads_taxa_table.tsv", 1, "this looks like a taxon table; use headroom taxa",
+     "a taxon table (headroom taxa input) given to headroom reads")
+case("reads_umi_tag_bad", "reads --umi-tag R! @fq_cell_tag.fq", 2, "--umi-tag: \"R!\" is not a SAM tag name",
+     "--umi-tag with a name outside the SAM tag alphabet [A-Za-z][A-Za-z0-9]")
+
 case("fq_long_line", "reads %fq_long_line.fq", 1, "fq_long_line.fq:7:",
      "generated at test time: a record of a 10 MB sequence and quality (read), then a record without '+'")
 
@@ -427,8 +460,61 @@ case("taxa_gz_cut", "taxa @taxa_gz_cut.tsv.gz", 1, "taxa_gz_cut.tsv.gz:1477: gzi
      "gzip TSV cut at half its compressed length")
 
 put("taxa_hdf5.biom", b"\x89HDF\r\n\x1a\n" + bytes(56))
-case("taxa_hdf5", "taxa @taxa_hdf5.biom", 1, "this is a BIOM 2 file (HDF5)",
-     "HDF5 format signature (BIOM 2.x files are HDF5) and zeros")
+case("taxa_hdf5", "taxa @taxa_hdf5.biom", 1, "taxa_hdf5.biom: HDF5: superblock gives sizes of offsets 0 and lengths 0",
+     "HDF5 format signature (BIOM 2.x files are HDF5) and zeros: a superblock version 0 with no valid sizes")
+
+# BIOM 2.1 (HDF5). The malformed files are written with python3-h5py by
+# scripts/biom2_fixtures.py (testdata/taxa/biom2/bad/); the cut ones are
+# cut from its biom-format-written small.biom.
+BIOM2 = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "testdata", "taxa", "biom2")
+
+
+def biom2(name):
+    with open(os.path.join(BIOM2, name), "rb") as f:
+        return f.read()
+
+
+h5small = biom2("small.biom")
+put("taxa_h5_cut.biom", h5small[:len(h5small) // 2])
+case("taxa_h5_cut", "taxa @taxa_h5_cut.biom", 1, "taxa_h5_cut.biom: HDF5 object /",
+     "BIOM 2.1 file (biom-format) cut at half its length: an object lies beyond the end")
+put("taxa_h5_superblock.biom", h5small[:40])
+case("taxa_h5_superblock", "taxa @taxa_h5_superblock.biom", 1, "taxa_h5_superblock.biom: HDF5: ",
+     "BIOM 2.1 file cut inside its superblock")
+for name, want, what in (
+        ("no_sample_indptr", "HDF5 object /sample/matrix/indptr: no such object", "BIOM 2.1 without sample/matrix/indptr"),
+        ("no_observation_indptr", "HDF5 object /observation/matrix/indptr: no such object", "BIOM 2.1 without observation/matrix/indptr"),
+        ("fraction", "/sample/matrix/data: entry 1 (sample \"pond-B\", taxon \"ASV1\"): \"2.5\" is not a whole number",
+         "BIOM 2.1 whose float64 data holds 2.5"),
+        ("indptr_decreasing", "/sample/matrix/indptr: entries 1 and 2 are 1 and 0", "BIOM 2.1 whose sample indptr falls"),
+        ("indptr_beyond", "/sample/matrix/indptr: last entry", "BIOM 2.1 whose sample indptr ends beyond data"),
+        ("inflate", "/sample/matrix/data: chunk 0 does not inflate", "BIOM 2.1 with a damaged deflate chunk"),
+        ("dense", "HDF5 object /sample: HDF5 feature not supported: dense link storage",
+         "BIOM 2.1 in the newest HDF5 format with 13 members in /sample (dense link storage, not read)"),
+):
+    put("taxa_h5_%s.biom" % name, biom2(os.path.join("bad", name + ".biom")))
+    case("taxa_h5_" + name, "taxa @taxa_h5_%s.biom" % name, 1, want, what)
+put("taxa_h5_not_biom.h5", biom2(os.path.join("bad", "not_biom.h5")))
+case("taxa_h5_not_biom", "taxa @taxa_h5_not_biom.h5", 1, "an HDF5 file, but not a BIOM 2.1 table: it has no /observation group",
+     "HDF5 file (h5py) with one dataset, not BIOM")
+
+# Files for another subcommand given to taxa: named, with the subcommand.
+SAM_REC = "r1\t0\tchr1\t100\t60\t8M\t*\t0\t0\tACGTACGT\tIIIIIIII\n"
+put("taxa_wrong_bam.bam", bgzf_block(b"BAM\x01" + struct.pack("<i", 0) + struct.pack("<i", 0)) + BGZF_EOF)
+case("taxa_wrong_bam", "taxa @taxa_wrong_bam.bam", 1, "taxa_wrong_bam.bam: this is a BAM file (aligned reads), not a taxon count table: use headroom reads",
+     "a BAM file (BGZF, magic BAM\\1, no references) given to taxa")
+put("taxa_wrong_sam.sam", "@HD\tVN:1.6\tSO:unsorted\n@SQ\tSN:chr1\tLN:1000\n" + SAM_REC)
+case("taxa_wrong_sam", "taxa @taxa_wrong_sam.sam", 1, "this is a SAM file (aligned reads), not a taxon count table: use headroom reads",
+     "a SAM file with header given to taxa")
+put("taxa_wrong_sam_nohead.sam", SAM_REC)
+case("taxa_wrong_sam_nohead", "taxa @taxa_wrong_sam_nohead.sam", 1, "SAM file without header",
+     "one SAM alignment line, no header, given to taxa")
+put("taxa_wrong_fastq.fq", "@read1\nACGTACGT\n+\nIIIIIIII\n@read2\nACGTTT\n+\nIIIIII\n")
+case("taxa_wrong_fastq", "taxa @taxa_wrong_fastq.fq", 1, "this is a FASTQ file (reads), not a taxon count table: use headroom reads",
+     "a FASTQ file given to taxa")
+put("taxa_wrong_counts.tsv", "sample\ttimes_seen\tunits\nLIB-1\t1\t40\nLIB-1\t2\t9\n")
+case("taxa_wrong_counts", "taxa @taxa_wrong_counts.tsv", 1, "use headroom counts",
+     "a frequency-count table (headroom's own header) given to taxa")
 
 
 def biom(data, shape=(2, 2), rows=("T1", "T2"), cols=("S1", "S2"), mtype="dense"):
@@ -570,10 +656,52 @@ for name, args, want, what in [
     ("flag_stdin_twice", "reads - -", "", "standard input named twice"),
     ("flag_taxa_two", "taxa @taxa_empty.tsv @taxa_empty.tsv", "", "two tables"),
     ("flag_taxa_layout", "taxa --samples-as-rows --taxa-as-rows @taxa_empty.tsv", "", "contradicting layouts"),
-    ("flag_taxa_coverage", "taxa --coverage-target 1.5 @taxa_empty.tsv", "coverage-target", "coverage target above 1"),
+    ("flag_taxa_coverage", "taxa --reach coverage:1.5 @taxa_empty.tsv", "coverage must be between 0 and 1", "coverage target above 1"),
     ("flag_version_args", "version extra", "no arguments", "version with an argument"),
 ]:
     case(name, args, 2, want, what)
+
+
+
+# ---------------------------------------------------------------- decisions
+# --reach targets, --plan/--budget/--pool (DESIGN.md "Decisions") and the
+# checks of outputs made before any input is read.
+
+put("pool_unknown.tsv", "sample\tshare\nA\t1\nZ\t2\n")
+put("pool_missing.tsv", "sample\tshare\n")
+put("pool_share_neg.tsv", "sample\tshare\nA\t-1\n")
+put("pool_share_word.tsv", "sample\tshare\nA\thalf\n")
+put("pool_no_header.tsv", "A\t1\n")
+for name, args, exit_, want, what in [
+    ("reach_unknown", "counts --reach speed:3 @counts_a.tsv", 2, "unknown kind", "a target kind that does not exist"),
+    ("reach_no_colon", "counts --reach 0.3 @counts_a.tsv", 2, "KIND:VALUE", "a target without its kind"),
+    ("reach_dup_range", "counts --reach dup:1.2 @counts_a.tsv", 2, "between 0 and 1", "a duplicate fraction above 1"),
+    ("reach_coverage_zero", "counts --reach coverage:0 @counts_a.tsv", 2, "between 0 and 1", "coverage 0"),
+    ("reach_distinct_neg", "counts --reach distinct:-5 @counts_a.tsv", 2, "distinct", "a negative distinct target"),
+    ("reach_repeat", "counts --reach dup:0.3,dup:0.3 @counts_a.tsv", 2, "given twice", "one target twice"),
+    ("plan_no_budget", "counts --plan @never_plan.tsv @counts_a.tsv", 2, "--plan needs --budget", "a plan without a budget"),
+    ("budget_no_plan", "counts --budget 10M @counts_a.tsv", 2, "--budget is for --plan", "a budget without a plan"),
+    ("budget_zero", "counts --plan @never_plan.tsv --budget 0 @counts_a.tsv", 2, "--budget", "a budget of 0 reads"),
+    ("budget_negative", "counts --plan @never_plan.tsv --budget -5 @counts_a.tsv", 2, "--budget", "a negative budget"),
+    ("plan_goal", "counts --plan @never_plan.tsv --budget 1M --plan-goal fastest @counts_a.tsv", 2, "most or reach", "an unknown plan goal"),
+    ("pool_unknown", "counts --plan @never_plan.tsv --budget 1M --pool @pool_unknown.tsv @counts_a.tsv", 1,
+     "pool_unknown.tsv:3: sample \"Z\" is not in this run", "a pool share for a sample the run does not have"),
+    ("pool_missing", "counts --plan @never_plan.tsv --budget 1M --pool @pool_missing.tsv @counts_a.tsv", 1,
+     "pool_missing.tsv: no share for", "a pool table without the run's sample"),
+    ("pool_share_neg", "counts --plan @never_plan.tsv --budget 1M --pool @pool_share_neg.tsv @counts_a.tsv", 1,
+     "pool_share_neg.tsv:2: column 2", "a negative pool share"),
+    ("pool_share_word", "counts --plan @never_plan.tsv --budget 1M --pool @pool_share_word.tsv @counts_a.tsv", 1,
+     "pool_share_word.tsv:2: column 2", "a pool share that is a word"),
+    ("pool_no_header", "counts --plan @never_plan.tsv --budget 1M --pool @pool_no_header.tsv @counts_a.tsv", 1,
+     "pool_no_header.tsv:1: the pool table needs a header", "a pool table without its header"),
+    ("pool_no_plan", "counts --pool @pool_unknown.tsv @counts_a.tsv", 2, "--pool is for --plan", "pool shares without a plan"),
+    ("out_two_stdout", "counts --curve - --save-counts - @counts_a.tsv", 2, "at most one output may be '-'", "two outputs on standard output"),
+    ("out_missing_dir", "counts -o /nonexistent-headroom-dir/out.tsv @counts_a.tsv", 2, "does not exist",
+     "an output in a folder that does not exist (refused before reading)"),
+    ("out_twice", "counts --plot a.png --plot b.svg @counts_a.tsv", 2, "--plot given twice", "one output flag given twice"),
+    ("out_plan_is_input", "counts --plan @counts_a.tsv --budget 1M @counts_a.tsv", 2, "also an input", "the plan would replace the input"),
+]:
+    case(name, args, exit_, want, what)
 
 
 def main():

@@ -44,6 +44,7 @@ class Gen:
         self.fastq = []  # (name, r1seq, r2seq)
         self.single = []  # (name, seq)
         self.serial = 0
+        self.no_mc = 0.08  # share of pairs written without MC (older aligners)
 
     def name(self, spot=None):
         self.serial += 1
@@ -182,7 +183,7 @@ class Gen:
         first, second = (b, a) if swap else (a, b)
         first["r1"], second["r1"] = True, False
         fate = r.random()
-        with_mc = r.random() > 0.08
+        with_mc = r.random() > self.no_mc
         for x, y in ((first, second), (second, first)):
             flag = 0x1 | (0x40 if x["r1"] else 0x80)
             if x["rev"]:
@@ -250,26 +251,31 @@ def header(g, so):
     }
 
 
+def segment(header, x):
+    """The pysam record of one record dict (also used by reads_umi_fixtures.py)."""
+    a = pysam.AlignedSegment(header)
+    a.query_name = x["qname"]
+    a.flag = x["flag"]
+    a.reference_id = x["ref"]
+    a.reference_start = x["pos"]
+    a.mapping_quality = x["mapq"]
+    if x["cigar"]:
+        a.cigartuples = x["cigar"]
+    a.next_reference_id = x["mref"]
+    a.next_reference_start = x["mpos"]
+    # Most records carry SEQ '*' to keep the fixtures small; one in
+    # ten carries bases and qualities, to exercise those fields.
+    if x.get("seq") and sum(map(ord, x["qname"])) % 10 == 0:
+        a.query_sequence = x["seq"]
+        a.query_qualities = pysam.qualitystring_to_array("I" * len(x["seq"]))
+    a.set_tags(x["tags"])
+    return a
+
+
 def write(path, g, recs, so, mode):
     with pysam.AlignmentFile(path, mode, header=header(g, so)) as out:
         for x in recs:
-            a = pysam.AlignedSegment(out.header)
-            a.query_name = x["qname"]
-            a.flag = x["flag"]
-            a.reference_id = x["ref"]
-            a.reference_start = x["pos"]
-            a.mapping_quality = x["mapq"]
-            if x["cigar"]:
-                a.cigartuples = x["cigar"]
-            a.next_reference_id = x["mref"]
-            a.next_reference_start = x["mpos"]
-            # Most records carry SEQ '*' to keep the fixtures small; one in
-            # ten carries bases and qualities, to exercise those fields.
-            if x["seq"] and sum(map(ord, x["qname"])) % 10 == 0:
-                a.query_sequence = x["seq"]
-                a.query_qualities = pysam.qualitystring_to_array("I" * len(x["seq"]))
-            a.set_tags(x["tags"])
-            out.write(a)
+            out.write(segment(out.header, x))
 
 
 def main():

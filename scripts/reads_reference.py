@@ -131,24 +131,79 @@ def clusters(spots, dist):
 class Sample:
     def __init__(self):
         self.records = 0
-        self.mols = OrderedDict()  # key -> list of spots
+        self.mols = OrderedDict()  # (position key, UMI) -> list of spots
 
     def add(self, key, sp):
+        # key ends with the UMI ("" when none)
         self.mols.setdefault(key, []).append(sp)
 
 
+def umi_bases(umi):
+    """The UMI as bases for error collapsing, or None when it is matched
+    exactly only: other letters than ACGT (N...), none, or over 28 bases.
+    '-' and '+' joining dual UMIs are not bases."""
+    b = umi.upper().replace("-", "").replace("+", "")
+    if not b or len(b) > 28 or set(b) - set("ACGT"):
+        return None
+    return b
+
+
+def hamming1(a, b):
+    return len(a) == len(b) and sum(x != y for x, y in zip(a, b)) == 1
+
+
+def directional(umis):
+    """Directional adjacency (Smith, Heger & Sudbery 2017, Genome Research
+    27:491): a -> b when a and b differ at one base and
+    count(a) >= 2 count(b) - 1. UMIs taken from the most reads down (ties:
+    shorter, then alphabetical); each not yet taken starts a molecule and
+    takes every UMI reachable from it along edges not yet taken.
+    umis: {bases: (count, spots)}. Returns [(reads, spots)] and the number
+    of UMIs merged."""
+    order = sorted(umis, key=lambda u: (-umis[u][0], len(u), u))
+    taken = set()
+    out = []
+    merged = 0
+    for u in order:
+        if u in taken:
+            continue
+        taken.add(u)
+        todo = [u]
+        n, spots = 0, []
+        while todo:
+            a = todo.pop(0)
+            n += umis[a][0]
+            spots += umis[a][1]
+            for b in order:
+                if b not in taken and hamming1(a, b) and umis[a][0] >= 2 * umis[b][0] - 1:
+                    taken.add(b)
+                    merged += 1
+                    todo.append(b)
+        out.append((n, spots))
+    return out, merged
+
+
 def parse_args(args):
-    o = {"by": "library", "umi": "rx", "min_mapq": 0, "optical": 100, "key_bases": 0, "files": []}
+    o = {"by": "library", "umi_tags": ["RX"], "umi_name": False, "cell": None, "umi_errors": 1,
+         "min_mapq": 0, "optical": 100, "key_bases": 16, "files": []}
     i = 0
     while i < len(args):
         a = args[i]
-        if a in ("--by", "--umi", "--min-mapq", "--optical-distance", "--key-bases", "--mode"):
+        if a in ("--by", "--umi-tag", "--cell-tag", "--umi-errors", "--min-mapq", "--optical-distance", "--key-bases", "--mode"):
             v = args[i + 1]
             i += 2
             if a == "--by":
                 o["by"] = v
-            elif a == "--umi":
-                o["umi"] = v
+                if v == "cell" and o["cell"] is None:
+                    o["cell"] = "CB"
+            elif a == "--umi-tag":
+                src = v.split(",")
+                o["umi_tags"] = [t for t in src if t not in ("name", "none")]
+                o["umi_name"] = "name" in src
+            elif a == "--cell-tag":
+                o["cell"] = v
+            elif a == "--umi-errors":
+                o["umi_errors"] = int(v)
             elif a == "--min-mapq":
                 o["min_mapq"] = int(v)
             elif a == "--optical-distance":
@@ -183,15 +238,23 @@ def count_alignments(path, o, samples):
                 lib = rgs[rg]
             else:
                 lib = rg
+            cell = None
+            if o["cell"]:
+                cell = a.get_tag(o["cell"]) if a.has_tag(o["cell"]) else None
+            if o["by"] == "cell":
+                lib = (lib, cell)
             s = samples.setdefault(lib, Sample())
             s.records += 1
             if a.flag & SKIP or a.mapping_quality < o["min_mapq"] or a.reference_id < 0:
                 continue
             umi = None
-            if o["umi"] != "none":
-                umi = a.get_tag("RX") if a.has_tag("RX") else None
-                if umi is None and o["umi"] == "name":
-                    umi = name_umi(a.query_name)
+            for t in o["umi_tags"]:
+                if a.has_tag(t):
+                    umi = a.get_tag(t)
+                    break
+            if umi is None and o["umi_name"]:
+                umi = name_umi(a.query_name)
+            lib = (lib, cell)  # the cell is part of the molecule
             sp = spot(a.query_name) if o["optical"] > 0 else None
             e = (a.reference_id, unclipped5_read(a), a.is_reverse)
             paired = a.is_paired and not a.mate_is_unmapped and a.next_reference_id >= 0 and a.next_reference_start >= 0
@@ -222,15 +285,62 @@ def count_alignments(path, o, samples):
 
 
 def fastq_umi(entry, o):
-    if o["umi"] == "none":
-        return ""
-    if entry.comment:
-        for w in entry.comment.split():
-            if w.startswith("RX:Z:"):
+    for t in o["umi_tags"]:
+        for w in (entry.comment or "").split():
+            if w.startswith(t + ":Z:"):
                 return w[5:]
-    if o["umi"] == "name":
+    if o["umi_name"]:
         return name_umi(entry.name) or ""
     return ""
+
+
+def key_distance(x, y):
+    """Mismatches between two FASTQ keys (a, b), either mate order; None
+    when the lengths differ."""
+    best = None
+    for b0, b1 in ((y[0], y[1]), (y[1], y[0])):
+        if len(x[0]) == len(b0) and len(x[1]) == len(b1):
+            d = sum(p != q for p, q in zip(x[0], b0)) + sum(p != q for p, q in zip(x[1], b1))
+            best = d if best is None else min(best, d)
+    return best
+
+
+def collapse_fastq_keys(mols):
+    """Directional adjacency (Smith et al. 2017, as directional() above) over
+    FASTQ keys of one library and UMI, with edges between keys within two
+    mismatches (the leading bases of both mates, either mate order). Keys
+    with other letters than ACGT are matched exactly. mols: {key: spots},
+    key = ("F1"/"F2", a, b, umi). Returns [spots] and the number merged."""
+    by_umi = OrderedDict()
+    exact = []
+    for key, spots in mols.items():
+        a, b = key[1], key[2] if key[0] == "F2" else ""
+        if set(a + b) - set("ACGT") or len(a) > 28 or len(b) > 28:
+            exact.append(spots)
+            continue
+        by_umi.setdefault(key[-1], {})[(a, b)] = spots
+    out, merged = list(exact), 0
+    for keys in by_umi.values():
+        order = sorted(keys, key=lambda k: (-len(keys[k]), len(k[0]), k[0], len(k[1]), k[1]))
+        taken = set()
+        for k in order:
+            if k in taken:
+                continue
+            taken.add(k)
+            todo, spots = [k], []
+            while todo:
+                x = todo.pop(0)
+                spots += keys[x]
+                for y in order:
+                    if y in taken:
+                        continue
+                    d = key_distance(x, y)
+                    if d is not None and 1 <= d <= 2 and len(keys[x]) >= 2 * len(keys[y]) - 1:
+                        taken.add(y)
+                        merged += 1
+                        todo.append(y)
+            out.append(spots)
+    return out, merged
 
 
 def count_fastq(p1, p2, o, samples):
@@ -277,14 +387,44 @@ def run_case(args, base_dir):
             count_fastq(fq[i], None, o, samples)
             i += 1
     out = []
+    cell_libs = {name[0] for name in samples if isinstance(name, tuple)}
     for name, s in samples.items():
         freq = {}
         used = optical = 0
-        for spots in s.mols.values():
+        # UMIs of one position, for error collapsing; FASTQ keys apart
+        # (their UMIs are matched exactly, their bases collapsed)
+        groups = OrderedDict()
+        mols = []
+        fq = OrderedDict()
+        for key, spots in s.mols.items():
             used += len(spots)
+            if key[0] in ("F1", "F2"):
+                fq[key] = spots
+                continue
+            b = umi_bases(key[-1]) if o["umi_errors"] > 0 else None
+            if b is None:
+                mols.append(spots)
+            else:
+                groups.setdefault(key[:-1], {})[b] = (len(spots), spots)
+        merged = 0
+        if 0 < o["key_bases"] <= 28:
+            ms, _ = collapse_fastq_keys(fq)
+            mols += ms
+        else:
+            mols += list(fq.values())
+        for umis in groups.values():
+            ms, m = directional(umis)
+            merged += m
+            mols += [sp for _, sp in ms]
+        for spots in mols:
             t = clusters(spots, o["optical"])
             optical += len(spots) - t
             freq[t] = freq.get(t, 0) + 1
+        if isinstance(name, tuple):  # --by cell
+            lib, cell = name
+            name = cell if cell is not None else "no-cell"
+            if len(cell_libs) > 1:
+                name = lib + "/" + name
         out.append((name, s.records, used, optical, freq))
     return out
 

@@ -8,6 +8,8 @@ import (
 	"runtime/debug"
 	"sort"
 	"strings"
+
+	"headroom/internal/inerr"
 )
 
 // Exit statuses: the contract pipelines rely on (DESIGN.md).
@@ -39,6 +41,8 @@ type app struct {
 	stderr io.Writer
 	// stderrTTY reports whether stderr is a terminal (for --progress auto).
 	stderrTTY bool
+	// stdoutTTY reports whether stdout is a terminal (for the text view).
+	stdoutTTY bool
 }
 
 // subcommand is one verb of the command line.
@@ -55,8 +59,12 @@ func register(s subcommand) { subcommands[s.name] = s }
 
 func init() {
 	register(subcommand{name: "version", summary: "print the version", run: func(a *app, args []string) error {
-		if len(args) > 0 && args[0] != "--help" && args[0] != "-h" {
-			return usagef("version takes no arguments")
+		c := newCommand("version", "headroom version", "Prints the version of headroom.")
+		if help, err := c.parse(a, args); help || err != nil {
+			return err
+		}
+		if len(c.args()) > 0 {
+			return c.usageErr("takes no arguments")
 		}
 		fmt.Fprintf(a.stdout, "headroom %s\n", toolVersion())
 		return nil
@@ -104,8 +112,8 @@ func mainUsage() string {
 	for _, n := range names {
 		fmt.Fprintf(&b, "  %-8s %s\n", n, subcommands[n].summary)
 	}
-	b.WriteString("\n'headroom COMMAND --help' describes a command's flags.\n" +
-		"exit status: 0 success, 1 bad input or failed run, 2 usage error, 3 a gate failed under --strict\n")
+	b.WriteString("\n'headroom COMMAND --help' describes a command's flags.\n\n")
+	b.WriteString(exitHelp(true))
 	return b.String()
 }
 
@@ -115,6 +123,11 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
 	if f, ok := stderr.(*os.File); ok {
 		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
 			a.stderrTTY = true
+		}
+	}
+	if f, ok := stdout.(*os.File); ok {
+		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
+			a.stdoutTTY = true
 		}
 	}
 	defer func() {
@@ -161,4 +174,55 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
 // oneLine keeps an error message on one line.
 func oneLine(s string) string {
 	return strings.Join(strings.Fields(s), " ")
+}
+
+// displayName is how an input is named in messages: its path, or
+// "<stdin>" for standard input.
+func displayName(f string) string {
+	if f == "-" {
+		return "<stdin>"
+	}
+	return f
+}
+
+// inputError turns a reader's error about file into the one-line message
+// "FILE:LINE: column C: what is wrong" (or "FILE: record N: ..."). Every
+// reader reports positions with inerr.ParseError; the package prefix of
+// the underlying message ("freqtable: ") is dropped, the file name says
+// where it is.
+func inputError(file string, err error) error {
+	var ee *exitError
+	if errors.As(err, &ee) {
+		return err
+	}
+	name := displayName(file)
+	var line int64
+	var where []string
+	var pe *inerr.ParseError
+	if errors.As(err, &pe) {
+		line = pe.Line
+		if pe.Column > 0 {
+			where = append(where, fmt.Sprintf("column %d", pe.Column))
+		}
+		if pe.Record > 0 && pe.Line == 0 {
+			where = append(where, fmt.Sprintf("record %d", pe.Record))
+		}
+		err = pe.Err
+	} else if pathErr := (*os.PathError)(nil); errors.As(err, &pathErr) || errors.Is(err, io.ErrUnexpectedEOF) {
+		// An I/O error, not a reader's finding: say what failed.
+		return inputf(name, 0, "cannot read: %v", unwrapPath(err))
+	}
+	msg := stripPackage(err.Error())
+	if len(where) > 0 {
+		msg = strings.Join(where, ", ") + ": " + msg
+	}
+	return inputf(name, line, "%s", msg)
+}
+
+// stripPackage drops a leading "pkg: " of headroom's own packages.
+func stripPackage(msg string) string {
+	for _, p := range []string{"freqtable: ", "reads: ", "amplicon: ", "dedup: ", "complexity: ", "hdf5: "} {
+		msg = strings.ReplaceAll(msg, p, "")
+	}
+	return msg
 }

@@ -218,7 +218,15 @@ func TestBadInputCorpus(t *testing.T) {
 				default:
 					outFlags = nil
 				}
-				args = append(append([]string{args[0]}, outFlags...), args[1:]...)
+				// A flag the case gives itself is not added again: a
+				// single-value flag may be given once.
+				var add []string
+				for i := 0; i+1 < len(outFlags); i += 2 {
+					if !containsArg(args[1:], outFlags[i]) {
+						add = append(add, outFlags[i], outFlags[i+1])
+					}
+				}
+				args = append(append([]string{args[0]}, add...), args[1:]...)
 			}
 
 			var stdout, stderr bytes.Buffer
@@ -307,4 +315,14 @@ func trimForLog(s string) string {
 		return s[:200] + fmt.Sprintf("... (%d bytes)", len(s))
 	}
 	return s
+}
+
+// containsArg reports whether flag is among args, as "--flag" or "--flag=...".
+func containsArg(args []string, flag string) bool {
+	for _, a := range args {
+		if a == flag || strings.HasPrefix(a, flag+"=") {
+			return true
+		}
+	}
+	return false
 }

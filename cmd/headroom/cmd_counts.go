@@ -2,13 +2,10 @@ package main
 
 import (
 	"errors"
-	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 	"strings"
-
-	"github.com/spf13/pflag"
 
 	"headroom/internal/freqtable"
 )
@@ -17,43 +14,34 @@ func init() {
 	register(subcommand{name: "counts", summary: "estimate from frequency-count tables (or per-unit counts)", run: runCounts})
 }
 
-const countsUsage = `usage: headroom counts [flags] FILE...
-
-Estimates from frequency-count tables: tab-separated files with the header
+const countsAbout = `Estimates from frequency-count tables: tab-separated files with the header
 "sample<TAB>times_seen<TAB>units", one row per sample and frequency (units =
 how many distinct units were seen exactly times_seen times). Several samples
 may share a file; files may be gzip-compressed; '-' reads standard input.
-With --per-unit, each FILE holds
-one count per line per unit, and the sample is named after the file.
+With --per-unit, each FILE holds one count per line per unit, and the sample
+is named after the file.
 
 Writes one summary row per sample (TSV or JSON) to stdout or -o FILE, and on
 request the curve (--curve), plot (--plot), HTML report (--report) and the
-counts themselves (--save-counts).
-`
+counts themselves (--save-counts).`
 
 func runCounts(a *app, args []string) error {
-	fs := pflag.NewFlagSet("counts", pflag.ContinueOnError)
-	fs.SetOutput(io.Discard)
-	fs.SortFlags = false
-	s := addShared(fs)
-	perUnit := fs.Bool("per-unit", false, "each FILE is one count per line per unit; the sample is named after the file")
-	help := fs.BoolP("help", "h", false, "show this help")
-	usage := func() string {
-		return helpText(countsUsage, fs, "headroom counts --at 10x,50M --bootstrap 200 --report qc.html testdata/demo/qc-pass.counts.tsv")
-	}
-	if err := fs.Parse(args); err != nil {
-		return &exitError{code: exitUsage, msg: "counts: " + err.Error(), usage: "usage: headroom counts [flags] FILE... (see headroom counts --help)"}
-	}
-	if *help {
-		fmt.Fprint(a.stdout, usage())
-		return nil
+	c := newCommand("counts", "headroom counts [flags] FILE...", countsAbout,
+		"headroom counts --at 10x,50M --bootstrap 200 --report qc.html testdata/demo/qc-pass.counts.tsv")
+	perUnit := c.flags(groupInputs).Bool("per-unit", false, "each FILE is one count per line per unit; the sample is named after the file")
+	s := addShared(c, "yield:0.1")
+	if help, err := c.parse(a, args); help || err != nil {
+		return err
 	}
 	if err := s.check(); err != nil {
 		return err
 	}
-	files := fs.Args()
+	files := c.args()
 	if len(files) == 0 {
-		return &exitError{code: exitUsage, msg: "counts: no input files", usage: "usage: headroom counts [flags] FILE... (see headroom counts --help)"}
+		return c.usageErr("no input files")
+	}
+	if err := s.checkOutputs(files); err != nil {
+		return err
 	}
 	var samples []sampleInput
 	from := map[string]string{}
@@ -61,7 +49,7 @@ func runCounts(a *app, args []string) error {
 	for _, f := range files {
 		if f == "-" {
 			if stdinUsed {
-				return usagef("counts: '-' (standard input) given twice")
+				return c.usageErr("'-' (standard input) given twice")
 			}
 			stdinUsed = true
 		}
@@ -78,14 +66,6 @@ func runCounts(a *app, args []string) error {
 		}
 	}
 	return a.estimateAndWrite(s, runInfo{command: "counts", inputs: files}, samples)
-}
-
-// displayName is how an input is named in messages.
-func displayName(f string) string {
-	if f == "-" {
-		return "<stdin>"
-	}
-	return f
 }
 
 // openInput opens a named input ('-' = stdin), refusing directories and
@@ -120,7 +100,7 @@ func readCountsFile(a *app, f string, perUnit bool) ([]sampleInput, error) {
 	if perUnit {
 		c, err := freqtable.ReadPerUnit(r)
 		if err != nil {
-			return nil, tableError(f, err)
+			return nil, inputError(f, err)
 		}
 		name := "stdin"
 		if f != "-" {
@@ -130,24 +110,11 @@ func readCountsFile(a *app, f string, perUnit bool) ([]sampleInput, error) {
 	}
 	got, err := freqtable.Read(r)
 	if err != nil {
-		return nil, tableError(f, err)
+		return nil, inputError(f, err)
 	}
 	out := make([]sampleInput, len(got))
 	for i, g := range got {
 		out[i] = sampleInput{name: g.Name, counts: g.Counts}
 	}
 	return out, nil
-}
-
-// tableError turns a freqtable error into "FILE:LINE: message".
-func tableError(f string, err error) error {
-	var pe *freqtable.ParseError
-	if errors.As(err, &pe) {
-		msg := strings.TrimPrefix(pe.Err.Error(), "freqtable: ")
-		if pe.Column > 0 {
-			msg = fmt.Sprintf("column %d: %s", pe.Column, msg)
-		}
-		return inputf(displayName(f), pe.Line, "%s", msg)
-	}
-	return inputf(displayName(f), 0, "cannot read: %v", err)
 }

@@ -8,8 +8,6 @@ import (
 	"sort"
 	"strings"
 
-	"github.com/spf13/pflag"
-
 	"headroom/complexity"
 	"headroom/internal/freqtable"
 )
@@ -18,40 +16,33 @@ func init() {
 	register(subcommand{name: "merge", summary: "add frequency-count tables of shards of the same samples", run: runMerge})
 }
 
-const mergeUsage = `usage: headroom merge [flags] FILE...
-
-Adds frequency-count tables (sample<TAB>times_seen<TAB>units) of shards of the
-same samples, for example one table per chromosome or per lane written with
---save-counts: units of equal (sample, times_seen) are summed. This is exact
-when every molecule falls in exactly one shard (scatter by chromosome with
-whole pairs, or by lane with distinct molecules per lane). Shards may be
-gzip-compressed.
+const mergeAbout = `Adds frequency-count tables (sample<TAB>times_seen<TAB>units) of shards of the
+same samples, for example one table per chromosome written with --save-counts:
+units of equal (sample, times_seen) are summed. This is exact only when every
+molecule falls in exactly one shard: scatter by chromosome with whole pairs.
+Lanes of one library are not such shards (one molecule is read on several
+lanes): count them together instead. Shards may be gzip-compressed.
 
 It refuses inputs that look like different runs: a file whose samples differ
 from the first file's (unless --partial), or the same shard given twice.
 
-Writes one frequency-count table to stdout or -o FILE (atomically).
-`
+Writes one frequency-count table to stdout or -o FILE (atomically).`
 
 func runMerge(a *app, args []string) error {
-	fs := pflag.NewFlagSet("merge", pflag.ContinueOnError)
-	fs.SetOutput(io.Discard)
-	fs.SortFlags = false
-	output := fs.StringP("output", "o", "", "write the merged table to `FILE` (default stdout), atomically")
-	partial := fs.Bool("partial", false, "allow shards that hold different sets of samples")
-	help := fs.BoolP("help", "h", false, "show this help")
-	short := "usage: headroom merge [flags] FILE... (see headroom merge --help)"
-	if err := fs.Parse(args); err != nil {
-		return &exitError{code: exitUsage, msg: "merge: " + err.Error(), usage: short}
+	c := newCommand("merge", "headroom merge [flags] FILE...", mergeAbout,
+		"headroom merge -o lib.counts.tsv chr1.counts.tsv chr2.counts.tsv chrX.counts.tsv",
+		"headroom counts --max-dup 0.5 --target 100M --strict lib.counts.tsv")
+	partial := c.flags(groupInputs).Bool("partial", false, "allow shards that hold different sets of samples")
+	output := c.flags(groupOutputs).StringP("output", "o", "", "write the merged table to `FILE` (default stdout), atomically")
+	if help, err := c.parse(a, args); help || err != nil {
+		return err
 	}
-	if *help {
-		fmt.Fprint(a.stdout, helpText(mergeUsage, fs, "headroom merge -o lib.counts.tsv chr1.counts.tsv chr2.counts.tsv chrX.counts.tsv",
-			"headroom counts --max-dup 0.5 --target 100M --strict lib.counts.tsv"))
-		return nil
-	}
-	files := fs.Args()
+	files := c.args()
 	if len(files) == 0 {
-		return &exitError{code: exitUsage, msg: "merge: no input files", usage: short}
+		return c.usageErr("no input files")
+	}
+	if err := checkOutputs([][2]string{{"-o", *output}}, files); err != nil {
+		return err
 	}
 	var (
 		order    []string
@@ -68,7 +59,7 @@ func runMerge(a *app, args []string) error {
 		got, err := freqtable.Read(io.TeeReader(r, hash))
 		r.Close()
 		if err != nil {
-			return tableError(f, err)
+			return inputError(f, err)
 		}
 		var h [32]byte
 		copy(h[:], hash.Sum(nil))

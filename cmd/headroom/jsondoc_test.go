@@ -16,8 +16,8 @@ type docField struct {
 }
 
 // readJSONDoc parses the key tables of docs/json.md: the section "Sample
-// keys" and "Prediction keys".
-func readJSONDoc(t *testing.T) (sample, pred []docField) {
+// keys", "Prediction keys" and "Reach keys".
+func readJSONDoc(t *testing.T) (sample, pred, reach []docField) {
 	t.Helper()
 	b, err := os.ReadFile("../../docs/json.md")
 	if err != nil {
@@ -31,15 +31,17 @@ func readJSONDoc(t *testing.T) (sample, pred []docField) {
 			cur = &sample
 		case strings.HasPrefix(line, "## Prediction keys"):
 			cur = &pred
+		case strings.HasPrefix(line, "## Reach keys"):
+			cur = &reach
 		}
 		if m := row.FindStringSubmatch(line); m != nil && cur != nil {
 			*cur = append(*cur, docField{key: m[1], typ: strings.ReplaceAll(m[2], "\\|", "|"), commands: m[3]})
 		}
 	}
-	if len(sample) < 10 || len(pred) < 5 {
-		t.Fatalf("docs/json.md: parsed %d sample and %d prediction keys", len(sample), len(pred))
+	if len(sample) < 10 || len(pred) < 5 || len(reach) < 4 {
+		t.Fatalf("docs/json.md: parsed %d sample, %d prediction and %d reach keys", len(sample), len(pred), len(reach))
 	}
-	return sample, pred
+	return sample, pred, reach
 }
 
 // checkType reports whether v matches a documented type.
@@ -76,7 +78,7 @@ func checkType(v any, typ string) bool {
 // the documented type, and no undocumented key appears.
 func validateJSONDoc(t *testing.T, command string, out []byte) {
 	t.Helper()
-	sample, pred := readJSONDoc(t)
+	sample, pred, reach := readJSONDoc(t)
 	d := json.NewDecoder(bytes.NewReader(out))
 	d.UseNumber()
 	var doc map[string]any
@@ -136,6 +138,9 @@ func validateJSONDoc(t *testing.T, command string, out []byte) {
 		check("sample "+obj["sample"].(string), obj, sample)
 		for _, p := range obj["predictions"].([]any) {
 			check("prediction", p.(map[string]any), pred)
+		}
+		for _, r := range obj["reach"].([]any) {
+			check("reach", r.(map[string]any), reach)
 		}
 	}
 }

@@ -5,6 +5,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 )
 
 // outputs collects rendered output files so that they are written all or
@@ -140,5 +141,67 @@ func refuseOverwritingInputs(outs []pendingFile, inputs []string) error {
 			}
 		}
 	}
+	return nil
+}
+
+// checkOutputs vets every output before any input is read, so that a long
+// run does not end in an error it could have given at once: at most one
+// output goes to standard output (the summary does unless -o names a
+// file), no two outputs share a file, none is an input, and each can be
+// created in its folder. outs are (flag, path) pairs; "" is not asked for,
+// "-" is standard output, and the first pair is the summary (or the one
+// output of merge).
+func checkOutputs(outs [][2]string, inputs []string) error {
+	var toStdout []string
+	named := map[string]string{}
+	for k, o := range outs {
+		flag, path := o[0], o[1]
+		if path == "-" || k == 0 && path == "" {
+			toStdout = append(toStdout, flag)
+			continue
+		}
+		if path == "" {
+			continue
+		}
+		p := filepath.Clean(path)
+		if prev, ok := named[p]; ok {
+			return usagef("%s and %s both write to %s; give each output its own file", prev, flag, path)
+		}
+		named[p] = flag
+		if err := refuseOverwritingInputs([]pendingFile{{path: path}}, inputs); err != nil {
+			return err
+		}
+		if err := checkCreatable(flag, path); err != nil {
+			return err
+		}
+	}
+	if len(toStdout) > 1 {
+		return usagef("%s all write to standard output; at most one output may be '-' (the summary is there unless -o names a file)", strings.Join(toStdout, ", "))
+	}
+	return nil
+}
+
+// checkCreatable reports whether path can be written as an output: not a
+// directory, in a folder that exists and takes new files.
+func checkCreatable(flag, path string) error {
+	if st, err := os.Stat(path); err == nil {
+		if st.IsDir() {
+			return usagef("%s %s is a directory; give a file name for the output", flag, path)
+		}
+		if !st.Mode().IsRegular() {
+			return nil // a device or pipe is written in place (commit)
+		}
+	}
+	dir := filepath.Dir(path)
+	st, err := os.Stat(dir)
+	if err != nil || !st.IsDir() {
+		return usagef("%s %s: folder %s does not exist; create it or write elsewhere", flag, path, dir)
+	}
+	f, err := os.CreateTemp(dir, ".headroom-check-*")
+	if err != nil {
+		return inputf(path, 0, "cannot create output (%s): %v", flag, unwrapPath(err))
+	}
+	f.Close()
+	os.Remove(f.Name())
 	return nil
 }

@@ -116,8 +116,9 @@ func TestFailedRunLeavesOldFiles(t *testing.T) {
 	os.WriteFile(old, []byte("old summary\n"), 0o644)
 	os.WriteFile(curve, []byte("old curve\n"), 0o644)
 	bad := filepath.Join(dir, "no-such-dir", "plot.svg")
+	// The folder is checked before any input is read (a usage error).
 	code, _, stderr := runCLI(t, "", "counts", "--bootstrap", "0", "-o", old, "--curve", curve, "--plot", bad, demoCounts)
-	if code != exitInput || !strings.Contains(stderr, "no-such-dir") {
+	if code != exitUsage || !strings.Contains(stderr, "no-such-dir") {
 		t.Fatalf("exit %d, stderr %q", code, stderr)
 	}
 	for p, want := range map[string]string{old: "old summary\n", curve: "old curve\n"} {

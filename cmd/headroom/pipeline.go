@@ -1,69 +1,13 @@
 package main
 
 import (
-	"bytes"
-	"encoding/json"
 	"fmt"
 	"math"
-	"strconv"
 	"strings"
 	"sync"
 
 	"headroom/complexity"
-	"headroom/internal/freqtable"
 )
-
-// cell is one pre-formatted value of the summary: its TSV text and its JSON
-// encoding. Missing values are empty in TSV and null in JSON (DESIGN.md).
-type cell struct {
-	tsv  string
-	json string
-}
-
-var nullCell = cell{tsv: "", json: "null"}
-
-func intCell(v int64) cell { s := strconv.FormatInt(v, 10); return cell{s, s} }
-
-// countCell formats an expected number of units: one decimal, or from
-// 1e15 on (beyond which a float64's digits past the 16th are noise, and
-// beyond any real library) ten significant digits in exponent form, so
-// that no digit is printed that the value does not hold.
-func countCell(v float64) cell {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return nullCell
-	}
-	s := strconv.FormatFloat(v, 'f', 1, 64)
-	if math.Abs(v) >= countExpFrom {
-		s = strconv.FormatFloat(v, 'e', 9, 64)
-	}
-	return cell{s, s}
-}
-
-const countExpFrom = 1e15
-
-// fracCell formats a fraction or ratio (six significant digits).
-func fracCell(v float64) cell {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return nullCell
-	}
-	s := strconv.FormatFloat(v, 'g', 6, 64)
-	return cell{s, s}
-}
-
-// strCell formats text; tabs and newlines become spaces so a TSV row stays
-// one row.
-func strCell(s string) cell {
-	s = freqtable.CleanName(s)
-	j, _ := json.Marshal(s)
-	return cell{s, string(j)}
-}
-
-// column is a named summary value a subcommand adds (e.g. records for
-// reads, chao1 for taxa); they are inserted before "method".
-type column struct {
-	key   string
-	value cell
-}
 
 // sampleInput is what a subcommand hands to the shared estimation and
 // output pipeline: one sample's frequency counts plus its own columns and
@@ -74,6 +18,27 @@ type sampleInput struct {
 	counts complexity.Counts
 	extra  []column
 	notes  []string
+	// sequenced is what this run bought for the sample, in reads as the
+	// run delivers them (read pairs for paired data, before any
+	// filtering); 0 means the counts' own reads (tables, counts).
+	sequenced int64
+}
+
+// bought returns the reads this run bought for the sample.
+func (in sampleInput) bought() int64 {
+	if in.sequenced > 0 {
+		return in.sequenced
+	}
+	return in.counts.Reads()
+}
+
+// usable is the share of bought reads that the curve speaks of.
+func (in sampleInput) usable() float64 {
+	b := in.bought()
+	if b == 0 {
+		return 1
+	}
+	return float64(in.counts.Reads()) / float64(b)
 }
 
 // runInfo describes the run for reports.
@@ -92,18 +57,24 @@ type runInfo struct {
 
 // estimated is one sample after estimation.
 type estimated struct {
-	in  sampleInput
-	rep complexity.Report
+	in    sampleInput
+	rep   complexity.Report
+	reach []reachAnswer
+}
+
+// pass says what one estimation pass over the samples computes.
+type pass struct {
+	curve    bool        // the curve points (--curve, --plot, --report)
+	noBoot   bool        // point estimates only (the plan's first pass)
+	extra    [][]float64 // per sample, depths predicted after the --at ones
+	progress func(done int)
 }
 
 // estimateAll runs complexity.Analyze on every sample with the shared
 // settings, in parallel over samples, results in input order.
-func estimateAll(s *shared, samples []sampleInput, wantCurve bool) []estimated {
+func estimateAll(s *shared, samples []sampleInput, p pass) []estimated {
 	out := make([]estimated, len(samples))
-	workers := s.threads
-	if workers > len(samples) {
-		workers = len(samples)
-	}
+	workers := min(s.threads, len(samples))
 	// Threads left for each sample's bootstrap: the bootstrap is seeded per
 	// replicate, so the split does not change any number.
 	inner := 1
@@ -111,36 +82,65 @@ func estimateAll(s *shared, samples []sampleInput, wantCurve bool) []estimated {
 		inner = s.threads / workers
 	}
 	jobs := make(chan int)
+	done := make(chan struct{}, len(samples))
 	var wg sync.WaitGroup
 	for w := 0; w < workers; w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			for i := range jobs {
-				out[i] = estimated{in: samples[i], rep: complexity.Analyze(samples[i].counts, s.options(samples[i].counts, wantCurve, inner))}
+				var extra []float64
+				if p.extra != nil {
+					extra = p.extra[i]
+				}
+				o := s.options(samples[i].counts, p.curve, inner, extra)
+				if p.noBoot {
+					o.Bootstrap = 0
+				}
+				e := estimated{in: samples[i], rep: complexity.Analyze(samples[i].counts, o)}
+				for k, r := range e.rep.Reach {
+					// Notes name the target as the user wrote it (distinct:3x).
+					note := strings.Replace(r.Note, r.Target.String(), s.reaches[k].label, 1)
+					e.reach = append(e.reach, reachAnswer{spec: s.reaches[k], reads: r.Reads, lo: r.Lo, hi: r.Hi, note: note})
+				}
+				out[i] = e
+				done <- struct{}{}
 			}
 		}()
 	}
-	for i := range samples {
-		jobs <- i
+	go func() {
+		for i := range samples {
+			jobs <- i
+		}
+		close(jobs)
+	}()
+	for k := range samples {
+		<-done
+		if p.progress != nil {
+			p.progress(k + 1)
+		}
 	}
-	close(jobs)
 	wg.Wait()
 	return out
 }
 
-// options builds the per-sample estimation options.
-func (s *shared) options(c complexity.Counts, wantCurve bool, threads int) complexity.Options {
+// options builds the per-sample estimation options; extra depths are
+// predicted after the --at ones.
+func (s *shared) options(c complexity.Counts, wantCurve bool, threads int, extra []float64) complexity.Options {
 	n := c.Reads()
 	o := complexity.Options{Bootstrap: s.bootstrap, Seed: s.seed, Level: s.level, Threads: threads, Gates: complexity.NoGates()}
 	for _, d := range s.depths {
 		o.Depths = append(o.Depths, d.reads(n))
 	}
+	o.Depths = append(o.Depths, extra...)
+	for _, r := range s.reaches {
+		o.Reach = append(o.Reach, r.target(c.Distinct()))
+	}
 	o.Gates.MaxDup, o.Gates.MinDistinct, o.Gates.MinCoverage = s.maxDup, s.minDistinct, s.minCoverage
 	switch {
 	case s.targetDepth != nil:
 		o.Gates.Target = s.targetDepth.reads(n)
-	case len(o.Depths) > 0:
+	case len(s.depths) > 0:
 		o.Gates.Target = o.Depths[0]
 	default:
 		o.Gates.Target = float64(n)
@@ -190,159 +190,38 @@ func curveGrid(n int64, max float64) []float64 {
 	return g
 }
 
-// summaryKeys returns the summary column names in DESIGN order for the
-// given extra keys (inserted before method) and --at labels.
-func summaryKeys(extra []string) []string {
-	keys := []string{"sample", "reads", "distinct", "dup_fraction", "singletons", "doubletons",
-		"sample_coverage", "marginal_yield", "total_est", "total_lo", "total_hi", "saturation"}
-	keys = append(keys, extra...)
-	return append(keys, "method", "backtest_error", "verdict", "notes")
-}
-
-// methodText is the method column: the curve's method and the total's
-// estimator, as "METHOD; total=TOTAL".
-func methodText(r complexity.Report) string {
-	switch {
-	case r.TotalMethod == "":
-		return r.Method
-	case r.Method == "":
-		return "total=" + r.TotalMethod
-	}
-	return r.Method + "; total=" + r.TotalMethod
-}
-
-// summaryCells returns the cells of summaryKeys for one sample.
-func summaryCells(e estimated) []cell {
-	r := e.rep
-	c := []cell{strCell(e.in.name), intCell(r.Reads), intCell(r.Distinct), fracCell(r.DupFraction),
-		intCell(r.Singletons), intCell(r.Doubletons), fracCell(r.SampleCoverage), fracCell(r.MarginalYield),
-		countCell(r.Total), countCell(r.TotalLo), countCell(r.TotalHi), fracCell(r.Saturation)}
-	for _, x := range e.in.extra {
-		c = append(c, x.value)
-	}
-	method := nullCell
-	if m := methodText(r); m != "" {
-		method = strCell(m)
-	}
-	verdict := nullCell
-	if r.Verdict != complexity.VerdictNone {
-		verdict = strCell(string(r.Verdict))
-	}
-	notes := nullCell
-	if all := append(append([]string(nil), e.in.notes...), r.Notes...); len(all) > 0 {
-		notes = strCell(strings.Join(all, "; "))
-	}
-	return append(c, method, fracCell(r.BacktestError), verdict, notes)
-}
-
-func extraKeys(samples []estimated) []string {
-	if len(samples) == 0 {
-		return nil
-	}
-	var k []string
-	for _, x := range samples[0].in.extra {
-		k = append(k, x.key)
-	}
-	return k
-}
-
-// writeSummaryTSV renders the summary table.
-func writeSummaryTSV(s *shared, samples []estimated) []byte {
-	var b bytes.Buffer
-	keys := summaryKeys(extraKeys(samples))
-	for _, d := range s.depths {
-		keys = append(keys, "distinct_"+d.label, "lo_"+d.label, "hi_"+d.label, "dup_fraction_"+d.label)
-	}
-	b.WriteString(strings.Join(keys, "\t"))
-	b.WriteByte('\n')
-	for _, e := range samples {
-		cells := summaryCells(e)
-		for _, p := range e.rep.Predictions {
-			cells = append(cells, countCell(p.Distinct), countCell(p.Lo), countCell(p.Hi), fracCell(p.DupFraction))
-		}
-		for i, c := range cells {
-			if i > 0 {
-				b.WriteByte('\t')
-			}
-			b.WriteString(c.tsv)
-		}
-		b.WriteByte('\n')
-	}
-	return b.Bytes()
-}
-
-// writeSummaryJSON renders the summary document (DESIGN.md, JSON).
-func writeSummaryJSON(s *shared, info runInfo, samples []estimated) []byte {
-	var b bytes.Buffer
-	v, _ := json.Marshal(toolVersion())
-	fmt.Fprintf(&b, "{\"tool\":\"headroom\",\"version\":%s,", v)
-	if len(info.notes) > 0 {
-		n, _ := json.Marshal(info.notes)
-		fmt.Fprintf(&b, "\"notes\":%s,", n)
-	}
-	b.WriteString("\"samples\":[")
-	keys := summaryKeys(extraKeys(samples))
-	for i, e := range samples {
-		if i > 0 {
-			b.WriteByte(',')
-		}
-		b.WriteString("\n{")
-		for k, c := range summaryCells(e) {
-			fmt.Fprintf(&b, "%q:%s,", keys[k], c.json)
-		}
-		b.WriteString("\"predictions\":[")
-		for k, p := range e.rep.Predictions {
-			if k > 0 {
-				b.WriteByte(',')
-			}
-			label, _ := json.Marshal(s.depths[k].label)
-			fmt.Fprintf(&b, "{\"label\":%s,\"reads\":%s,\"distinct\":%s,\"lo\":%s,\"hi\":%s,\"dup_fraction\":%s}",
-				label, countCell(p.Reads).json, countCell(p.Distinct).json, countCell(p.Lo).json,
-				countCell(p.Hi).json, fracCell(p.DupFraction).json)
-		}
-		b.WriteString("]}")
-	}
-	b.WriteString("\n]}\n")
-	return b.Bytes()
-}
-
-// writeCurve renders the long-format curve.
-func writeCurve(samples []estimated) []byte {
-	var b bytes.Buffer
-	b.WriteString("sample\treads\tdistinct\tlo\thi\tkind\n")
-	for _, e := range samples {
-		name := strCell(e.in.name).tsv
-		for _, p := range e.rep.Points {
-			fmt.Fprintf(&b, "%s\t%s\t%s\t%s\t%s\t%s\n", name, countCell(p.Reads).tsv, countCell(p.Distinct).tsv,
-				countCell(p.Lo).tsv, countCell(p.Hi).tsv, p.Kind)
-		}
-	}
-	return b.Bytes()
-}
-
-// writeCounts renders frequency-count tables in the interchange format.
-func writeCounts(samples []sampleInput) []byte {
-	var b bytes.Buffer
-	ft := make([]freqtable.Sample, len(samples))
-	for i, s := range samples {
-		ft[i] = freqtable.Sample{Name: s.name, Counts: s.counts}
-	}
-	freqtable.Write(&b, ft) // writes to memory: cannot fail
-	return b.Bytes()
-}
-
 // estimateAndWrite is the shared back half of every estimating subcommand:
 // estimate each sample, render every requested output, and write them all
 // atomically. Nothing is written unless everything rendered. With --strict
 // it returns errStrict after writing when any sample failed a gate.
 func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) error {
-	wantCurve := s.curve != "" || s.plot != "" || s.report != ""
-	est := estimateAll(s, samples, wantCurve)
+	if s.strict && !s.anyGate() {
+		fmt.Fprintln(a.stderr, "headroom: warning: --strict without a gate (--max-dup, --min-distinct, --min-coverage) can never fail a sample")
+	}
+	p := pass{curve: s.curve != "" || s.plot != "" || s.report != ""}
+	var pl *plan
+	if s.plan != "" {
+		var err error
+		if pl, err = newPlan(s, samples); err != nil {
+			return err
+		}
+		p.extra = pl.depths()
+	}
+	bar := s.bar(a, len(samples), "estimating")
+	p.progress = bar.set
+	est := estimateAll(s, samples, p)
+	bar.finish()
+	if pl != nil {
+		pl.fill(est)
+	}
 	var outs outputs
 	var summary []byte
-	if s.format == "json" {
+	switch s.resolvedFormat(a) {
+	case "json":
 		summary = writeSummaryJSON(s, info, est)
-	} else {
+	case "text":
+		summary = writeText(s, info, est, pl)
+	default:
 		summary = writeSummaryTSV(s, est)
 	}
 	outs.add(s.output, summary)
@@ -357,7 +236,7 @@ func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) e
 		outs.add(s.plot, img)
 	}
 	if s.report != "" {
-		page, err := renderReport(s, info, est)
+		page, err := renderReport(s, info, est, pl)
 		if err != nil {
 			return err
 		}
@@ -365,6 +244,9 @@ func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) e
 	}
 	if s.saveCounts != "" {
 		outs.add(s.saveCounts, writeCounts(samples))
+	}
+	if pl != nil {
+		outs.add(s.plan, pl.render(s.plan))
 	}
 	outs.files = append(outs.files, info.extra...)
 	if err := refuseOverwritingInputs(outs.files, info.inputs); err != nil {

@@ -51,7 +51,9 @@ const plotMaxCurves = 8
 func plotSubset(est []estimated) (idx []int, note string) {
 	var usable []int
 	for i, e := range est {
-		if len(e.rep.Points) > 0 && e.rep.Reads > 0 {
+		// A sample without a curve beyond its reads (too few reads, one
+		// unit) has nothing to show and would take a slot from others.
+		if len(e.rep.Points) > 0 && e.rep.Reads > 0 && e.rep.Curve.Model != nil {
 			usable = append(usable, i)
 		}
 	}
@@ -81,42 +83,6 @@ func plotSubset(est []estimated) (idx []int, note string) {
 	return idx, fmt.Sprintf("showing %d of %d samples, spread over their complexity", len(idx), len(usable))
 }
 
-// depthTicks labels a log axis in reads with k/M/G suffixes.
-type depthTicks struct{}
-
-func (depthTicks) Ticks(min, max float64) []plot.Tick {
-	var ts []plot.Tick
-	for e := math.Floor(math.Log10(min)); e <= math.Ceil(math.Log10(max)); e++ {
-		for _, m := range []float64{1, 2, 5} {
-			v := m * math.Pow(10, e)
-			if v < min*0.999 || v > max*1.001 {
-				continue
-			}
-			label := ""
-			if m == 1 || (max/min < 1e3) {
-				label = human(v)
-			}
-			ts = append(ts, plot.Tick{Value: v, Label: label})
-		}
-	}
-	return ts
-}
-
-// countTicks labels a linear axis of distinct units with k/M suffixes.
-type countTicks struct{}
-
-func (countTicks) Ticks(min, max float64) []plot.Tick {
-	ts := plot.DefaultTicks{}.Ticks(min, max)
-	for i := range ts {
-		if ts[i].Label != "" {
-			ts[i].Label = human(ts[i].Value)
-		}
-	}
-	return ts
-}
-
-// renderPlot draws the saturation plot of the samples and encodes it as
-// SVG or PNG by the file's extension.
 func renderPlot(path string, s *shared, est []estimated) ([]byte, string, error) {
 	ext := strings.ToLower(filepath.Ext(path))
 	if ext != ".svg" && ext != ".png" {
@@ -127,9 +93,42 @@ func renderPlot(path string, s *shared, est []estimated) ([]byte, string, error)
 	return b.Bytes(), note, err
 }
 
-// drawPlot renders into w; format is ".svg" or ".png".
+// legendEntry is one line of the plot's legend.
+type legendEntry struct {
+	name  string
+	thumb plot.Thumbnailer
+}
+
+// plotFrame is the state drawPlot's steps share: the plot, the axis range
+// the curves span and the legend so far.
+type plotFrame struct {
+	p                *plot.Plot
+	xmin, xmax, ymax float64
+	yfloor           float64 // > 0 on a log y axis
+	logY             bool
+	legend           []legendEntry
+}
+
+// drawPlot renders into w; format is ".svg" or ".png". It returns the note
+// on which samples are shown ("" when all are).
 func drawPlot(w *bytes.Buffer, format string, s *shared, est []estimated, width, height vg.Length) (string, error) {
 	idx, note := plotSubset(est)
+	f := newPlotFrame(note)
+	f.chooseYScale(est, idx)
+	for k, i := range idx {
+		f.addSample(est[i], palette[k%len(palette)])
+	}
+	if len(idx) == 0 {
+		f.p.Title.Text = "No sample has a curve to draw"
+		f.xmin, f.xmax, f.ymax = 1, 10, 1
+	}
+	f.addTarget(s)
+	f.setAxes()
+	return note, f.render(w, format, width, height, f.keyLegend(s, len(idx) > 0))
+}
+
+// newPlotFrame starts the plot: title, labels, log depth axis, grid.
+func newPlotFrame(note string) *plotFrame {
 	p := plot.New()
 	p.Title.Text = "Expected distinct units by sequencing depth"
 	if note != "" {
@@ -142,11 +141,14 @@ func drawPlot(w *bytes.Buffer, format string, s *shared, est []estimated, width,
 	p.X.Tick.Marker = depthTicks{}
 	p.Y.Tick.Marker = countTicks{}
 	p.Add(plotter.NewGrid())
+	return &plotFrame{p: p, xmin: math.Inf(1), xmax: math.Inf(-1)}
+}
 
-	// The curves start at plotFromFraction of each sample's depth: the
-	// shallowest part of a rarefaction curve tells nothing. Libraries of
-	// very different size get a log y axis: a linear one would flatten the
-	// small ones onto zero.
+// chooseYScale: the curves start at plotFromFraction of each sample's
+// depth (the shallowest part of a rarefaction curve tells nothing), and
+// libraries of very different size get a log y axis: a linear one would
+// flatten the small ones onto zero.
+func (f *plotFrame) chooseYScale(est []estimated, idx []int) {
 	peakMin, peakMax, floor := math.Inf(1), 0.0, math.Inf(1)
 	for _, i := range idx {
 		peak := 0.0
@@ -158,118 +160,113 @@ func drawPlot(w *bytes.Buffer, format string, s *shared, est []estimated, width,
 		}
 		peakMin, peakMax = math.Min(peakMin, peak), math.Max(peakMax, peak)
 	}
-	logY := peakMin > 0 && !math.IsInf(peakMin, 1) && peakMax/peakMin > plotLogYRatio
-	yfloor := 0.0
-	if logY {
-		yfloor = floor / 1.5
+	f.logY = peakMin > 0 && !math.IsInf(peakMin, 1) && peakMax/peakMin > plotLogYRatio
+	if f.logY {
+		f.yfloor = floor / 1.5
 	}
-	clampY := func(v float64) float64 { return math.Max(v, yfloor) }
-	xmin, xmax := math.Inf(1), math.Inf(-1)
-	ymax := 0.0
-	type legendEntry struct {
-		name  string
-		thumb plot.Thumbnailer
-	}
-	var legend []legendEntry
-	for k, i := range idx {
-		e := est[i]
-		col := palette[k%len(palette)]
-		var rare, extra, band plotter.XYs
-		var upper plotter.XYs
-		for _, pt := range e.rep.Points {
-			if math.IsNaN(pt.Distinct) || pt.Reads <= 0 || pt.Reads < plotFromFraction*float64(e.rep.Reads) {
-				continue
-			}
+}
 
-			xy := plotter.XY{X: pt.Reads, Y: pt.Distinct}
-			xmin, xmax = math.Min(xmin, pt.Reads), math.Max(xmax, pt.Reads)
-			ymax = math.Max(ymax, pt.Distinct)
-			switch pt.Kind {
-			case complexity.KindRarefied:
-				rare = append(rare, xy)
-			case complexity.KindObserved:
-				rare = append(rare, xy)
-				extra = append(extra, xy)
-			default:
-				extra = append(extra, xy)
-			}
-			if !math.IsNaN(pt.Lo) && !math.IsNaN(pt.Hi) {
-				band = append(band, plotter.XY{X: pt.Reads, Y: clampY(pt.Lo)})
-				upper = append(upper, plotter.XY{X: pt.Reads, Y: pt.Hi})
-				ymax = math.Max(ymax, pt.Hi)
-			}
+// addSample draws one sample: solid rarefaction, dashed extrapolation,
+// the shaded interval and a dot at the observed depth.
+func (f *plotFrame) addSample(e estimated, col color.NRGBA) {
+	var rare, extra, band, upper plotter.XYs
+	for _, pt := range e.rep.Points {
+		if math.IsNaN(pt.Distinct) || pt.Reads <= 0 || pt.Reads < plotFromFraction*float64(e.rep.Reads) {
+			continue
 		}
-		if len(band) > 1 {
-			for j := len(upper) - 1; j >= 0; j-- {
-				band = append(band, upper[j])
-			}
-			poly, err := plotter.NewPolygon(band)
-			if err == nil {
-				fill := col
-				fill.A = 0x38
-				poly.Color = fill
-				poly.LineStyle.Width = 0
-				p.Add(poly)
-			}
+		xy := plotter.XY{X: pt.Reads, Y: pt.Distinct}
+		f.xmin, f.xmax = math.Min(f.xmin, pt.Reads), math.Max(f.xmax, pt.Reads)
+		f.ymax = math.Max(f.ymax, pt.Distinct)
+		switch pt.Kind {
+		case complexity.KindRarefied:
+			rare = append(rare, xy)
+		case complexity.KindObserved:
+			rare = append(rare, xy)
+			extra = append(extra, xy)
+		default:
+			extra = append(extra, xy)
 		}
-		if len(rare) > 1 {
-			l, err := plotter.NewLine(rare)
-			if err == nil {
-				l.Color = col
-				l.Width = vg.Points(1.8)
-				p.Add(l)
-			}
+		if !math.IsNaN(pt.Lo) && !math.IsNaN(pt.Hi) {
+			band = append(band, plotter.XY{X: pt.Reads, Y: math.Max(pt.Lo, f.yfloor)})
+			upper = append(upper, plotter.XY{X: pt.Reads, Y: pt.Hi})
+			f.ymax = math.Max(f.ymax, pt.Hi)
 		}
-		if len(extra) > 1 {
-			l, err := plotter.NewLine(extra)
-			if err == nil {
-				l.Color = col
-				l.Width = vg.Points(1.8)
+	}
+	if len(band) > 1 {
+		for j := len(upper) - 1; j >= 0; j-- {
+			band = append(band, upper[j])
+		}
+		if poly, err := plotter.NewPolygon(band); err == nil {
+			fill := col
+			fill.A = 0x38
+			poly.Color = fill
+			poly.LineStyle.Width = 0
+			f.p.Add(poly)
+		}
+	}
+	for _, seg := range []struct {
+		xy     plotter.XYs
+		dashed bool
+	}{{rare, false}, {extra, true}} {
+		if len(seg.xy) < 2 {
+			continue
+		}
+		if l, err := plotter.NewLine(seg.xy); err == nil {
+			l.Color = col
+			l.Width = vg.Points(1.8)
+			if seg.dashed {
 				l.Dashes = []vg.Length{vg.Points(6), vg.Points(3)}
-				p.Add(l)
 			}
-		}
-		obs, err := plotter.NewScatter(plotter.XYs{{X: float64(e.rep.Reads), Y: float64(e.rep.Distinct)}})
-		if err == nil {
-			obs.GlyphStyle.Color = col
-			obs.GlyphStyle.Radius = vg.Points(3.5)
-			obs.GlyphStyle.Shape = draw.CircleGlyph{}
-			p.Add(obs)
-			xmin = math.Min(xmin, float64(e.rep.Reads))
-			xmax = math.Max(xmax, float64(e.rep.Reads))
-		}
-		thumb, _ := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 0}})
-		thumb.Color = col
-		thumb.Width = vg.Points(2.5)
-		legend = append(legend, legendEntry{e.in.name, thumb})
-	}
-	if len(idx) == 0 {
-		p.Title.Text = "No sample has a curve to draw"
-		xmin, xmax, ymax = 1, 10, 1
-	}
-	// The target depth, when it is the same for every sample (absolute).
-	if s.targetDepth != nil && s.targetDepth.absolute > 0 {
-		t := s.targetDepth.absolute
-		xmin, xmax = math.Min(xmin, t), math.Max(xmax, t)
-		vl, err := plotter.NewLine(plotter.XYs{{X: t, Y: math.Max(yfloor, 0)}, {X: t, Y: ymax * 1.5}})
-		if err == nil {
-			vl.Color = color.NRGBA{0x33, 0x33, 0x33, 0xff}
-			vl.Width = vg.Points(1)
-			vl.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
-			p.Add(vl)
-			legend = append(legend, legendEntry{"target " + s.targetDepth.label, vl})
+			f.p.Add(l)
 		}
 	}
-	p.X.Min, p.X.Max = xmin, xmax
-	p.Y.Min, p.Y.Max = 0, ymax*1.05
-	if logY {
+	if obs, err := plotter.NewScatter(plotter.XYs{{X: float64(e.rep.Reads), Y: float64(e.rep.Distinct)}}); err == nil {
+		obs.GlyphStyle.Color = col
+		obs.GlyphStyle.Radius = vg.Points(3.5)
+		obs.GlyphStyle.Shape = draw.CircleGlyph{}
+		f.p.Add(obs)
+		f.xmin = math.Min(f.xmin, float64(e.rep.Reads))
+		f.xmax = math.Max(f.xmax, float64(e.rep.Reads))
+	}
+	thumb, _ := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 0}})
+	thumb.Color = col
+	thumb.Width = vg.Points(2.5)
+	f.legend = append(f.legend, legendEntry{e.in.name, thumb})
+}
+
+// addTarget marks the gates' target depth when it is the same for every
+// sample (absolute).
+func (f *plotFrame) addTarget(s *shared) {
+	if s.targetDepth == nil || s.targetDepth.absolute <= 0 {
+		return
+	}
+	t := s.targetDepth.absolute
+	f.xmin, f.xmax = math.Min(f.xmin, t), math.Max(f.xmax, t)
+	vl, err := plotter.NewLine(plotter.XYs{{X: t, Y: math.Max(f.yfloor, 0)}, {X: t, Y: f.ymax * 1.5}})
+	if err == nil {
+		vl.Color = color.NRGBA{0x33, 0x33, 0x33, 0xff}
+		vl.Width = vg.Points(1)
+		vl.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
+		f.p.Add(vl)
+		f.legend = append(f.legend, legendEntry{"target " + s.targetDepth.label, vl})
+	}
+}
+
+// setAxes fits the axes to what was drawn.
+func (f *plotFrame) setAxes() {
+	p := f.p
+	p.X.Min, p.X.Max = f.xmin, f.xmax
+	p.Y.Min, p.Y.Max = 0, f.ymax*1.05
+	if f.logY {
 		p.Y.Scale = plot.LogScale{}
 		p.Y.Tick.Marker = depthTicks{}
 		p.Y.Label.Text = "distinct units (log scale)"
-		p.Y.Min, p.Y.Max = yfloor, ymax*1.5
+		p.Y.Min, p.Y.Max = f.yfloor, f.ymax*1.5
 	}
+}
 
-	// Legend in its own column right of the plot, so it covers no curve.
+// keyLegend is the legend: the samples, then what the line styles mean.
+func (f *plotFrame) keyLegend(s *shared, any bool) *plot.Legend {
 	solid, _ := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 0}})
 	solid.Color = color.Black
 	dashed, _ := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 0}})
@@ -283,19 +280,24 @@ func drawPlot(w *bytes.Buffer, format string, s *shared, est []estimated, width,
 	leg.Left = true
 	leg.TextStyle.Font.Size = vg.Points(9)
 	leg.Padding = vg.Points(2.5)
-	for _, e := range legend {
+	for _, e := range f.legend {
 		leg.Add(e.name, e.thumb)
 	}
 	leg.Add("rarefied (solid)", solid)
 	leg.Add("extrapolated (dashed)", dashed)
 	leg.Add("observed depth", dot)
-	if len(idx) > 0 {
+	if any {
 		shade, _ := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 0}, {X: 1, Y: 1}})
 		shade.Color = color.NRGBA{0x55, 0x55, 0x55, 0x38}
 		shade.LineStyle.Width = 0
 		leg.Add(fmt.Sprintf("%.0f%% interval", s.level*100), shade)
 	}
+	return &leg
+}
 
+// render draws the plot with its legend in a column of its own to the
+// right, so the legend covers no curve.
+func (f *plotFrame) render(w *bytes.Buffer, format string, width, height vg.Length, leg *plot.Legend) error {
 	var cw vg.CanvasWriterTo
 	if format == ".svg" {
 		cw = vgsvg.New(width, height)
@@ -306,8 +308,8 @@ func drawPlot(w *bytes.Buffer, format string, s *shared, est []estimated, width,
 	legendWidth := 1.9 * vg.Inch
 	plotArea := draw.Crop(dc, 0, -legendWidth, 0, 0)
 	legendArea := draw.Crop(dc, width-legendWidth+vg.Points(6), 0, 0, -vg.Points(24))
-	p.Draw(plotArea)
+	f.p.Draw(plotArea)
 	leg.Draw(legendArea)
 	_, err := cw.WriteTo(w)
-	return note, err
+	return err
 }

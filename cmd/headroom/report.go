@@ -2,9 +2,10 @@ package main
 
 import (
 	"bytes"
+	_ "embed"
 	"fmt"
 	"html/template"
-	"strconv"
+	"math"
 	"strings"
 
 	"gonum.org/v1/plot/vg"
@@ -14,82 +15,13 @@ import (
 
 // reportTemplate is the self-contained HTML report: inline CSS and SVG, no
 // scripts, no external assets, readable when printed.
-const reportTemplate = `<!DOCTYPE html>
-<html lang="en">
-<head>
-<meta charset="utf-8">
-<meta name="viewport" content="width=device-width, initial-scale=1">
-<title>headroom report: {{.Title}}</title>
-<style>
-body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, "DejaVu Sans", sans-serif; margin: 2em auto; max-width: 1200px; padding: 0 1em; color: #1d232a; line-height: 1.45; }
-h1 { font-size: 1.5em; margin-bottom: 0.2em; }
-h2 { font-size: 1.15em; margin-top: 1.8em; border-bottom: 1px solid #d4d9de; padding-bottom: 0.2em; }
-.sub { color: #56606b; margin-top: 0; }
-.verdicts { display: flex; gap: 0.8em; flex-wrap: wrap; margin: 1em 0; }
-.chip { padding: 0.35em 0.8em; border-radius: 0.3em; font-weight: 600; border: 1px solid; }
-.pass { background: #e3f1fb; border-color: #1b4f8a; color: #123a66; }
-.warn { background: #fff1d6; border-color: #b36b00; color: #6e4200; }
-.fail { background: #f9e0e6; border-color: #8c2d5a; color: #5c1639; }
-.none { background: #eef0f2; border-color: #9aa3ad; color: #3b434c; }
-table { border-collapse: collapse; font-size: 0.88em; margin: 0.5em 0; }
-th, td { border: 1px solid #d4d9de; padding: 0.3em 0.55em; text-align: right; white-space: nowrap; }
-th { background: #f3f5f7; }
-td.l, th.l { text-align: left; }
-td.v { font-weight: 700; text-align: center; }
-.scroll { overflow-x: auto; }
-.plot svg { width: 100%; height: auto; max-width: 1100px; }
-.caution { background: #fbf7ea; border-left: 4px solid #b36b00; padding: 0.6em 1em; }
-dl.settings { display: grid; grid-template-columns: max-content auto; gap: 0.15em 1.2em; }
-dl.settings dt { color: #56606b; }
-dl.settings dd { margin: 0; font-family: ui-monospace, "DejaVu Sans Mono", monospace; }
-ul.notes li { margin-bottom: 0.3em; }
-.small { font-size: 0.85em; color: #56606b; }
-</style>
-</head>
-<body>
-<h1>headroom report: {{.Title}}</h1>
-<p class="sub">{{.Count}} sample(s) from <code>headroom {{.Command}}</code>, version {{.Version}}. Gates at {{.TargetText}}.</p>
-<div class="verdicts">
-{{range .Tally}}<span class="chip {{.Class}}">{{.Label}}: {{.N}}</span>
-{{end}}</div>
-<p class="caution"><strong>Caution.</strong> These predictions are estimates that assume deeper sequencing draws reads at random from the same library as this run. A re-prepared library, another protocol, contamination or lane effects are outside what they can know. Where they inform decisions about clinical samples, local laboratory procedures and accredited QC rules prevail.</p>
-
-<h2>Summary</h2>
-<div class="scroll"><table>
-<tr>{{range .Header}}<th{{if .Left}} class="l"{{end}}>{{.Text}}</th>{{end}}</tr>
-{{range .Rows}}<tr>{{range .}}<td{{if .Class}} class="{{.Class}}"{{end}}>{{.Text}}</td>{{end}}</tr>
-{{end}}</table></div>
-
-<h2>Saturation curves</h2>
-<div class="plot">{{.Plot}}</div>
-{{if .PlotNote}}<p class="small">{{.PlotNote}}.</p>{{end}}
-<p class="small">Solid: exact rarefaction below the observed depth (dot). Dashed: extrapolation. Shaded: the {{.Level}} interval.</p>
-
-{{if .RunNotes}}<h2>Notes on the whole run</h2>
-<ul class="notes">
-{{range .RunNotes}}<li>{{.}}</li>
-{{end}}</ul>
-{{end}}
-<h2>Notes per sample</h2>
-<ul class="notes">
-{{range .Notes}}<li><strong>{{.Name}}</strong> ({{.Verdict}}): {{.Text}}</li>
-{{else}}<li>No notes.</li>
-{{end}}</ul>
-
-<h2>Settings</h2>
-<dl class="settings">
-{{range .Settings}}<dt>{{.K}}</dt><dd>{{.V}}</dd>
-{{end}}</dl>
-
-<h2>Methods</h2>
-<p>For each sample headroom counts how many distinct units were seen exactly <i>j</i> times (<i>n<sub>j</sub></i>). Below the observed depth the curve is exact rarefaction without replacement (Hurlbert 1971) with its variance (Heck, van Belle &amp; Simberloff 1975). Above it the expected new units follow the Good–Toulmin series (Good &amp; Toulmin 1956), which diverges beyond twice the observed depth; headroom stabilises it by rational-function (Padé) approximation in continued-fraction form computed by the quotient–difference algorithm (Rutishauser 1954; Baker &amp; Graves-Morris 1996) and weighs it against Poisson-mixture fits (zero-truncated negative binomial; Poisson–lognormal) by admissibility and by a self-backtest: the observed counts are thinned to 10% of the reads, refitted, and asked to predict what was observed (column <code>backtest_error</code>). The method column names what was used. Intervals come from a bootstrap of the units (seeded, reproducible). Totals are the curve's limit where it is bounded, otherwise Chao1 bias-corrected with its log-normal interval (Chao 1984, 1987); sample coverage is the Chao &amp; Jost (2012) estimate.</p>
-<p class="small">References: Good IJ, Toulmin GH (1956) Biometrika 43:45–63. Hurlbert SH (1971) Ecology 52:577–586. Heck KL, van Belle G, Simberloff D (1975) Ecology 56:1459–1461. Rutishauser H (1954) ZAMP 5:233–251. Baker GA, Graves-Morris P (1996) Padé Approximants, 2nd ed., Cambridge. Chao A (1984) Scand J Stat 11:265–270. Chao A (1987) Biometrics 43:783–791. Chao A, Lee SM (1992) JASA 87:210–217. Shen TJ, Chao A, Lin CF (2003) Ecology 84:798–804. Chao A, Jost L (2012) Ecology 93:2533–2547. Lander ES, Waterman MS (1988) Genomics 2:231–239.</p>
-</body>
-</html>
-`
+//
+//go:embed report.html
+var reportTemplate string
 
 type reportCell struct {
 	Text  string
+	Sub   string // a second, smaller line (an interval)
 	Class string
 }
 
@@ -108,7 +40,7 @@ type reportTally struct {
 }
 
 // renderReport builds the HTML page.
-func renderReport(s *shared, info runInfo, est []estimated) ([]byte, error) {
+func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, error) {
 	var svg bytes.Buffer
 	note, err := drawPlot(&svg, ".svg", s, est, 10*vg.Inch, 6*vg.Inch)
 	if err != nil {
@@ -119,24 +51,21 @@ func renderReport(s *shared, info runInfo, est []estimated) ([]byte, error) {
 		plotSVG = plotSVG[i:] // drop the XML prolog: inline SVG has none
 	}
 
-	// The page shows the columns a person decides by, verdict first; the
-	// TSV/JSON summary has them all.
-	head := []reportHead{{Text: "sample", Left: true}, {Text: "verdict"}, {Text: "reads"}, {Text: "distinct"},
-		{Text: "dup fraction"}, {Text: "coverage"}, {Text: "total (interval)"}, {Text: "saturation"}}
+	// The page shows the columns a person decides by, verdict first, and
+	// fits a 1,300 px page; the TSV/JSON summary has them all.
+	head := []reportHead{{Text: "sample", Left: true}, {Text: "verdict"}, {Text: "reads"}, {Text: "dup now"},
+		{Text: "distinct"}, {Text: "total"}}
 	for _, d := range s.depths {
-		head = append(head, reportHead{Text: "distinct at " + d.label + " (interval)"}, reportHead{Text: "dup at " + d.label})
+		head = append(head, reportHead{Text: "distinct at " + d.label})
 	}
-	head = append(head, reportHead{Text: "method", Left: true}, reportHead{Text: "backtest error"})
-	interval := func(v, lo, hi float64) string {
-		t := human(v)
-		if l, h := human(lo), human(hi); t != "" && l != "" && h != "" {
-			t += " (" + l + " – " + h + ")"
-		}
-		return t
+	for _, r := range s.reaches {
+		head = append(head, reportHead{Text: "reads to " + r.label})
 	}
+	head = append(head, reportHead{Text: "method", Left: true}, reportHead{Text: "backtest"})
 	var rows [][]reportCell
 	counts := map[complexity.Verdict]int{}
 	var notes []reportNote
+	var decisions []string
 	for _, e := range est {
 		r := e.rep
 		v := string(r.Verdict)
@@ -144,22 +73,25 @@ func renderReport(s *shared, info runInfo, est []estimated) ([]byte, error) {
 			v = "—"
 		}
 		row := []reportCell{{Text: e.in.name, Class: "l"}, {Text: v, Class: "v " + verdictClass(r.Verdict)},
-			{Text: human(float64(r.Reads))}, {Text: human(float64(r.Distinct))}, {Text: frac3(r.DupFraction)},
-			{Text: frac3(r.SampleCoverage)}, {Text: interval(r.Total, r.TotalLo, r.TotalHi)}, {Text: frac3(r.Saturation)}}
-		for _, p := range r.Predictions {
-			row = append(row, reportCell{Text: interval(p.Distinct, p.Lo, p.Hi)}, reportCell{Text: frac3(p.DupFraction)})
+			{Text: human(float64(r.Reads))}, {Text: percent(r.DupFraction)}, {Text: human(float64(r.Distinct))},
+			intervalCell(r.Total, r.TotalLo, r.TotalHi)}
+		for _, p := range r.Predictions[:len(s.depths)] {
+			row = append(row, intervalCell(p.Distinct, p.Lo, p.Hi))
 		}
-		row = append(row, reportCell{Text: methodText(r), Class: "l"}, reportCell{Text: pct(r.BacktestError)})
+		for _, a := range e.reach {
+			row = append(row, intervalCell(a.reads, a.lo, a.hi))
+		}
+		row = append(row, reportCell{Text: string(r.Method), Class: "l"}, reportCell{Text: pct(r.BacktestError)})
 		rows = append(rows, row)
 		counts[r.Verdict]++
-		all := append(append([]string(nil), e.in.notes...), r.Notes...)
-		if len(all) > 0 {
+		if all := sampleNotes(e); len(all) > 0 {
 			v := string(r.Verdict)
 			if v == "" {
 				v = "no gates"
 			}
 			notes = append(notes, reportNote{Name: e.in.name, Verdict: v, Text: strings.Join(all, "; ")})
 		}
+		decisions = append(decisions, decisionLine(s, info.command, e))
 	}
 	var tally []reportTally
 	for _, v := range []complexity.Verdict{complexity.VerdictFail, complexity.VerdictWarn, complexity.VerdictPass, complexity.VerdictNone} {
@@ -189,6 +121,13 @@ func renderReport(s *shared, info runInfo, est []estimated) ([]byte, error) {
 		{"--max-dup", gateText(s.maxDup)},
 		{"--min-distinct", gateText(s.minDistinct)},
 		{"--min-coverage", gateText(s.minCoverage)},
+		{"--reach", strings.Join(s.reach, ",")},
+	}
+	if pl != nil {
+		settings = append(settings, reportKV{"--budget", s.budget}, reportKV{"--plan-goal", s.planGoal})
+		if s.pool != "" {
+			settings = append(settings, reportKV{"--pool", s.pool})
+		}
 	}
 	settings = append(settings, info.settings...)
 	title := "run"
@@ -201,7 +140,10 @@ func renderReport(s *shared, info runInfo, est []estimated) ([]byte, error) {
 		"Title": title, "Count": len(est), "Command": info.command, "Version": toolVersion(),
 		"TargetText": target, "Tally": tally, "Header": head, "Rows": rows,
 		"Plot": template.HTML(plotSVG), "PlotNote": note, "Level": fmt.Sprintf("%.0f%%", s.level*100),
-		"Notes": notes, "Settings": settings, "RunNotes": info.notes,
+		"Notes": notes, "Settings": settings, "RunNotes": info.notes, "Decisions": decisions,
+	}
+	if pl != nil {
+		data["Plan"] = planReport(pl)
 	}
 	t, err := template.New("report").Parse(reportTemplate)
 	if err != nil {
@@ -212,6 +154,120 @@ func renderReport(s *shared, info runInfo, est []estimated) ([]byte, error) {
 		return nil, err
 	}
 	return b.Bytes(), nil
+}
+
+// intervalCell shows a value with its interval on a second, smaller line,
+// so that a wide table still fits the page.
+func intervalCell(v, lo, hi float64) reportCell {
+	full := withInterval(v, lo, hi)
+	val, iv, ok := strings.Cut(full, " (")
+	if !ok {
+		return reportCell{Text: full}
+	}
+	return reportCell{Text: val, Sub: strings.TrimSuffix(iv, ")")}
+}
+
+// unitWord names what a command counts, for sentences.
+func unitWord(command string) string {
+	switch command {
+	case "reads":
+		return "molecules"
+	case "taxa":
+		return "taxa"
+	}
+	return "units"
+}
+
+// decisionLine says in words what the numbers mean for one sample: the
+// duplicates now, what the first --at depth beyond this run would add,
+// and where the first reach target is met, e.g. "LIB-03: 36% duplicates
+// now; 10x the reads would add 2.7k molecules (+63%); yield:0.1 at about
+// 25k reads".
+func decisionLine(s *shared, command string, e estimated) string {
+	r := e.rep
+	var parts []string
+	if !math.IsNaN(r.DupFraction) {
+		parts = append(parts, percent(r.DupFraction)+" duplicates now")
+	}
+	// The depth people ask about most is 10x; else the first one beyond
+	// this run.
+	order := make([]int, 0, len(s.depths))
+	for k, d := range s.depths {
+		if d.multiple == 10 {
+			order = append([]int{k}, order...)
+		} else {
+			order = append(order, k)
+		}
+	}
+	for _, k := range order {
+		d, p := s.depths[k], r.Predictions[k]
+		if p.Reads <= float64(r.Reads) || math.IsNaN(p.Distinct) || r.Distinct == 0 {
+			continue
+		}
+		gain := p.Distinct - float64(r.Distinct)
+		what := d.label + " reads"
+		if d.multiple > 0 {
+			what = d.label + " the reads"
+		}
+		parts = append(parts, fmt.Sprintf("%s would add %s %s (%+.0f%%)", what, human(gain), unitWord(command), 100*gain/float64(r.Distinct)))
+		break
+	}
+	for _, a := range e.reach {
+		switch {
+		case math.IsNaN(a.reads):
+			parts = append(parts, a.spec.label+" not reached within 100x")
+		case a.spec.kind == "yield":
+			parts = append(parts, fmt.Sprintf("more reads stop paying (%s) at about %s reads", a.spec.label, human(a.reads)))
+		default:
+			parts = append(parts, fmt.Sprintf("%s at about %s reads", a.spec.label, human(a.reads)))
+		}
+		break
+	}
+	if len(parts) == 0 {
+		parts = append(parts, "nothing to estimate")
+	}
+	return e.in.name + ": " + strings.Join(parts, "; ")
+}
+
+// planView is the plan as the report shows it.
+type planView struct {
+	Heading string
+	Rows    [][]reportCell
+	Bars    template.HTML
+	Notes   []string
+}
+
+// planReport renders the plan table and an inline SVG bar chart of the
+// next pool's shares.
+func planReport(pl *plan) planView {
+	v := planView{Heading: planText(pl)[:strings.Index(planText(pl), "\n")]}
+	var svg strings.Builder
+	const barH, gap, labelW, barW = 18, 6, 180, 600
+	fmt.Fprintf(&svg, `<svg xmlns="http://www.w3.org/2000/svg" width="%d" height="%d" role="img" aria-label="share of the next pool per sample">`,
+		labelW+barW+80, len(pl.rows)*(barH+gap)+gap)
+	for i, r := range pl.rows {
+		v.Rows = append(v.Rows, []reportCell{{Text: r.name, Class: "l"}, {Text: human(float64(r.readsNow))}, {Text: percent(r.shareNow)},
+			{Text: human(float64(r.readsNext))}, {Text: percent(r.poolShare)}, intervalCell(r.distinctAfter, r.lo, r.hi),
+			{Text: "+" + human(r.distinctAfter-float64(r.distinctNow))}, {Text: percent(r.dupAfter)}, {Text: r.action, Class: "l"}})
+		y := gap + i*(barH+gap)
+		w := 0.0
+		if !math.IsNaN(r.poolShare) {
+			w = r.poolShare * barW
+		}
+		fmt.Fprintf(&svg, `<text x="%d" y="%d" font-size="12" text-anchor="end">%s</text>`, labelW-6, y+barH-5, template.HTMLEscapeString(r.name))
+		fmt.Fprintf(&svg, `<rect x="%d" y="%d" width="%.1f" height="%d" fill="#2f6f9f"/>`, labelW, y, w, barH)
+		fmt.Fprintf(&svg, `<text x="%.1f" y="%d" font-size="12">%s</text>`, float64(labelW)+w+6, y+barH-5, percent(r.poolShare))
+	}
+	svg.WriteString("</svg>")
+	v.Bars = template.HTML(svg.String())
+	v.Notes = append(v.Notes, pl.legend())
+	v.Notes = append(v.Notes, pl.notes...)
+	for _, r := range pl.rows {
+		for _, n := range r.notes {
+			v.Notes = append(v.Notes, r.name+": "+n)
+		}
+	}
+	return v
 }
 
 func verdictClass(v complexity.Verdict) string {
@@ -227,53 +283,4 @@ func gateText(v float64) string {
 		return "not set"
 	}
 	return fmt.Sprint(v)
-}
-
-// human writes a count for people (report cells, plot ticks): three
-// significant digits with k/M/G, trailing zeros dropped: 500, 20k, 1.5M,
-// 2.33M, 3G.
-func human(v float64) string {
-	if v != v || v > 1e300 || v < -1e300 {
-		return ""
-	}
-	if v < 1e4 && v > -1e4 {
-		return fmt.Sprintf("%.0f", v)
-	}
-	for _, u := range []struct {
-		d   float64
-		suf string
-	}{{1e9, "G"}, {1e6, "M"}, {1e3, "k"}} {
-		if v >= 0.9995*u.d || v <= -0.9995*u.d {
-			x := v / u.d
-			prec := 2
-			switch {
-			case x >= 100 || x <= -100:
-				prec = 0
-			case x >= 10 || x <= -10:
-				prec = 1
-			}
-			t := strconv.FormatFloat(x, 'f', prec, 64)
-			if strings.Contains(t, ".") {
-				t = strings.TrimRight(strings.TrimRight(t, "0"), ".")
-			}
-			return t + u.suf
-		}
-	}
-	return fmt.Sprint(v)
-}
-
-// frac3 writes a fraction with three decimals.
-func frac3(v float64) string {
-	if v != v {
-		return ""
-	}
-	return fmt.Sprintf("%.3f", v)
-}
-
-// pct writes a signed relative error as a percentage.
-func pct(v float64) string {
-	if v != v {
-		return ""
-	}
-	return fmt.Sprintf("%+.1f%%", 100*v)
 }

@@ -18,8 +18,9 @@ func TestSummaryColumns(t *testing.T) {
 	}
 	lines := strings.Split(strings.TrimSuffix(out, "\n"), "\n")
 	want := "sample reads distinct dup_fraction singletons doubletons sample_coverage marginal_yield " +
-		"total_est total_lo total_hi saturation method backtest_error verdict notes " +
-		"distinct_10x lo_10x hi_10x dup_fraction_10x distinct_50M lo_50M hi_50M dup_fraction_50M"
+		"total_est total_lo total_hi total_method saturation method backtest_error verdict notes " +
+		"distinct_10x lo_10x hi_10x dup_fraction_10x distinct_50M lo_50M hi_50M dup_fraction_50M " +
+		"reach_yield_0.1 lo_reach_yield_0.1 hi_reach_yield_0.1"
 	if got := strings.Join(strings.Split(lines[0], "\t"), " "); got != want {
 		t.Errorf("header\n got %s\nwant %s", got, want)
 	}

@@ -109,7 +109,7 @@ func checkTaxaSkbio(t *testing.T, what string, d taxaDoc, golden []map[string]st
 			}
 		}
 		if num(s["reads"]) == 0 {
-			for _, k := range []string{"chao1", "chao1_lo", "chao1_hi", "ace", "good_coverage", "reads_to_coverage"} {
+			for _, k := range []string{"chao1", "chao1_lo", "chao1_hi", "ace", "good_coverage", "reach_coverage_0.99"} {
 				if s[k] != nil {
 					t.Errorf("%s %s: %s = %v for an empty sample, want null", what, name, k, s[k])
 				}
@@ -164,7 +164,7 @@ func TestTaxaRarefiedMatchesScipy(t *testing.T) {
 	// Both sides sum the same terms in float64; log-gamma differences lose
 	// about eps*N*log(N) (N <= 2e4 here), so 1e-9 relative is ample.
 	const tol = 1e-9
-	code, out, errs := runCLI(t, "", "taxa", "--bootstrap", "0", "--save-counts", "-", filepath.Join(taxaData, "gen_taxa_rows.tsv"))
+	code, out, errs := runCLI(t, "", "taxa", "--bootstrap", "0", "-o", filepath.Join(t.TempDir(), "summary.tsv"), "--save-counts", "-", filepath.Join(taxaData, "gen_taxa_rows.tsv"))
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -204,13 +204,17 @@ func TestTaxaRarefiedMatchesScipy(t *testing.T) {
 	}
 }
 
-// reads_to_coverage solves the Chao & Jost (2012) coverage for the target.
-func TestTaxaReadsToCoverage(t *testing.T) {
+// --reach coverage:C solves the Chao & Jost (2012) coverage for the target.
+func TestTaxaReachCoverage(t *testing.T) {
 	c, _ := complexity.FromMap(map[int64]int64{1: 40, 2: 15, 3: 8, 10: 30, 100: 5})
 	n := float64(c.Reads())
 	cv := complexity.Curve{Counts: c}
 	for _, target := range []float64{0.5, 0.9, 0.95, 0.99, 0.999} {
-		m := taxaReadsToCoverage(c, target)
+		spec, err := parseReach(fmt.Sprintf("coverage:%v", target))
+		if err != nil {
+			t.Fatal(err)
+		}
+		m := complexity.Curve{Counts: c}.ReadsFor(spec.target(c.Distinct()), 100*n)
 		if math.IsNaN(m) {
 			t.Fatalf("target %v: NaN", target)
 		}
@@ -261,7 +265,7 @@ func TestTaxaBadInput(t *testing.T) {
 		{"biomfrac", biom(`"matrix_type":"sparse","data":[[0,0,1.5]]`), ":1: column 260: \"1.5\" is not a whole number"},
 		{"biomneg", biom(`"matrix_type":"dense","data":[[1,2],[3,-4]]`), "negative count"},
 		{"biomdup", `{"shape":[1,2],"matrix_type":"dense","rows":[{"id":"T"}],"columns":[{"id":"A"},{"id":"A"}],"data":[[1,2]]}`, "sample ID \"A\" repeated"},
-		{"hdf5", "\x89HDF\r\n\x1a\n\x00\x00\x00binary", ":1: column 1: this is a BIOM 2 file (HDF5)"},
+		{"hdf5", "\x89HDF\r\n\x1a\n\x00\x00\x00binary", ": HDF5: 24 bytes at address 0 lie beyond the end of the file"},
 	}
 	out := writeFile(t, dir, "keep.tsv", "old contents\n")
 	adv := filepath.Join(dir, "advice.tsv")
@@ -295,7 +299,7 @@ func TestTaxaUsage(t *testing.T) {
 		{"taxa"},
 		{"taxa", p, p},
 		{"taxa", "--samples-as-rows", "--taxa-as-rows", p},
-		{"taxa", "--coverage-target", "1.5", p},
+		{"taxa", "--reach", "coverage:1.5", p},
 		{"taxa", "--no-such-flag", p},
 	} {
 		if code, _, stderr := runCLI(t, "", args...); code != exitUsage || !strings.HasPrefix(stderr, "headroom: ") {
@@ -312,7 +316,7 @@ func TestTaxaUsage(t *testing.T) {
 func TestTaxaSingletonFiltered(t *testing.T) {
 	d := runTaxaJSON(t, "", filepath.Join(taxaData, "gen_taxa_rows.tsv"))
 	for _, s := range d.Samples {
-		notes, _ := s["notes"].(string)
+		notes := jsonNotes(s["notes"])
 		flagged := strings.Contains(notes, "taxa seen once where at least")
 		switch s["sample"] {
 		case "NO-SINGLES":
@@ -349,7 +353,7 @@ func TestTaxaSingletonFiltered(t *testing.T) {
 		fmt.Fprintf(&b, "OTU%d\t%d\t%d\t%d\t%d\n", i, x[0], x[1], x[2], x[3])
 	}
 	d = runTaxaJSON(t, b.String(), "-")
-	notes, _ := d.Samples[0]["notes"].(string)
+	notes := jsonNotes(d.Samples[0]["notes"])
 	if !strings.Contains(notes, "table singletons: 0 taxa have 1 read in the whole table") {
 		t.Errorf("table-wide singleton filter not noted: %q", notes)
 	}
@@ -417,9 +421,22 @@ func TestTaxaSuspiciousTables(t *testing.T) {
 	} {
 		d := runTaxaJSON(t, c.body, "-")
 		for _, s := range d.Samples {
-			if notes, _ := s["notes"].(string); !strings.Contains(notes, c.want) {
+			if notes := jsonNotes(s["notes"]); !strings.Contains(notes, c.want) {
 				t.Errorf("%s: %v notes %q, want %q", c.name, s["sample"], notes, c.want)
 			}
 		}
 	}
+}
+
+// jsonNotes joins a sample's JSON notes (an array of strings) as the TSV
+// does.
+func jsonNotes(v any) string {
+	arr, _ := v.([]any)
+	var out []string
+	for _, x := range arr {
+		if s, ok := x.(string); ok {
+			out = append(out, s)
+		}
+	}
+	return strings.Join(out, "; ")
 }

@@ -18,6 +18,7 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
+	"headroom/internal/inerr"
 	"io"
 	"strconv"
 	"strings"
@@ -34,21 +35,9 @@ const Header = "sample\ttimes_seen\tunits"
 const maxLine = 1 << 20
 
 // ParseError reports a problem at a line (1-based) and column (1-based
-// field number, 0 when the whole line is at fault).
-type ParseError struct {
-	Line   int64
-	Column int
-	Err    error
-}
-
-func (e *ParseError) Error() string {
-	if e.Column > 0 {
-		return fmt.Sprintf("line %d, column %d: %v", e.Line, e.Column, e.Err)
-	}
-	return fmt.Sprintf("line %d: %v", e.Line, e.Err)
-}
-
-func (e *ParseError) Unwrap() error { return e.Err }
+// field; 0 when the whole line is at fault). It is the shape every reader
+// of headroom shares (internal/inerr).
+type ParseError = inerr.ParseError
 
 // Errors reported inside a ParseError.
 var (

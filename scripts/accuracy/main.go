@@ -13,6 +13,12 @@
 // headroom's intervals and the failures (NaN, error or an inadmissible
 // curve) per estimator, overall and by family, as markdown.
 //
+// It also measures headroom's reach answers (complexity.Options.Reach):
+// for each target kind (distinct, dup, coverage, yield) the target is set
+// to its true value at T = 3N, 10N, 30N (reachTargets), so the true
+// answer is T; the table gives the median and 90th percentile |relative
+// error| of the depth and the coverage of its interval.
+//
 // The grid: 14 families × library sizes S ∈ {1e4, 1e5, 1e6, 1e7} × depth
 // N/S ∈ {0.1, 0.3, 1, 3} (a shallow QC pass sees anywhere from a tenth to a
 // few times the library), one draw each; -quick uses S ≤ 1e6 and N/S ∈
@@ -41,162 +47,11 @@ import (
 	"time"
 
 	"headroom/complexity"
+	"headroom/internal/benchstat"
 	"headroom/internal/sim"
 )
 
-// family generates the relative abundances of S units.
-type family struct {
-	name string
-	gen  func(rng *rand.Rand, S int) []float64
-}
-
-func lognormal(sigma float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := make([]float64, S)
-		for i := range a {
-			a[i] = math.Exp(sigma * rng.NormFloat64())
-		}
-		return a
-	}
-}
-
-func gammaFam(shape float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := make([]float64, S)
-		for i := range a {
-			a[i] = sim.Gamma(rng, shape)
-		}
-		return a
-	}
-}
-
-// pcr: each molecule starts as one copy and is amplified over cycles; in
-// each cycle each copy is duplicated with the molecule's efficiency e ~
-// Uniform(eLo, eHi) (a Galton–Watson branching process). From 30 copies
-// on, the binomial step is replaced by its normal approximation (the
-// early cycles, where the randomness that matters arises, are exact).
-func pcr(cycles int, eLo, eHi float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := make([]float64, S)
-		for i := range a {
-			e := eLo + (eHi-eLo)*rng.Float64()
-			c := 1.0
-			for k := 0; k < cycles; k++ {
-				if c < 30 {
-					n := 0.0
-					for j := 0; j < int(c); j++ {
-						if rng.Float64() < e {
-							n++
-						}
-					}
-					c += n
-				} else {
-					c += math.Max(0, math.Round(c*e+math.Sqrt(c*e*(1-e))*rng.NormFloat64()))
-				}
-			}
-			a[i] = c
-		}
-		return a
-	}
-}
-
-// zipf: p_i ∝ i^(−s) (ranks shuffled do not matter).
-func zipf(s float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := make([]float64, S)
-		for i := range a {
-			a[i] = math.Pow(float64(i+1), -s)
-		}
-		return a
-	}
-}
-
-// jackpot: a lognormal(σ=0.5) library in which a share of the molecules
-// were amplified early and are mult times more abundant.
-func jackpot(share, mult float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := lognormal(0.5)(rng, S)
-		for i := range a {
-			if rng.Float64() < share {
-				a[i] *= mult
-			}
-		}
-		return a
-	}
-}
-
-// twoPop: a share of the units come from a second, rarer population.
-func twoPop(share, rel float64, g1, g2 func(*rand.Rand, int) []float64) func(*rand.Rand, int) []float64 {
-	return func(rng *rand.Rand, S int) []float64 {
-		a := g1(rng, S)
-		b := g2(rng, S)
-		for i := range a {
-			if rng.Float64() < share {
-				a[i] = rel * b[i]
-			}
-		}
-		return a
-	}
-}
-
-var families = []family{
-	{"lognormal-0.5", lognormal(0.5)},
-	{"lognormal-1", lognormal(1)},
-	{"lognormal-1.5", lognormal(1.5)},
-	{"lognormal-2", lognormal(2)},
-	{"gamma-0.5", gammaFam(0.5)},
-	{"gamma-1", gammaFam(1)},
-	{"gamma-4", gammaFam(4)},
-	{"pcr-narrow", pcr(10, 0.85, 0.95)},
-	{"pcr-wide", pcr(14, 0.4, 0.95)},
-	{"zipf-0.7", zipf(0.7)},
-	{"zipf-1", zipf(1)},
-	{"jackpot", jackpot(0.005, 200)},
-	{"twopop-gamma", twoPop(0.3, 0.05, gammaFam(2), lognormal(1))},
-	{"twopop-ln", twoPop(0.5, 0.1, lognormal(0.3), lognormal(0.3))},
-}
-
 var multiples = []float64{2, 10, 30, 100}
-
-// poissonRand draws Poisson(lam): inversion below 10, PTRS transformed
-// rejection above (Hörmann 1993, Insurance Math Econ 12:39).
-func poissonRand(rng *rand.Rand, lam float64) int64 {
-	if lam <= 0 {
-		return 0
-	}
-	if lam < 10 {
-		l := math.Exp(-lam)
-		k := int64(0)
-		p := rng.Float64()
-		for p > l {
-			k++
-			p *= rng.Float64()
-		}
-		return k
-	}
-	slam := math.Sqrt(lam)
-	loglam := math.Log(lam)
-	b := 0.931 + 2.53*slam
-	a := -0.059 + 0.02483*b
-	invalpha := 1.1239 + 1.1328/(b-3.4)
-	vr := 0.9277 - 3.6224/(b-2)
-	for {
-		u := rng.Float64() - 0.5
-		v := rng.Float64()
-		us := 0.5 - math.Abs(u)
-		k := math.Floor((2*a/us+b)*u + lam + 0.43)
-		if us >= 0.07 && v <= vr {
-			return int64(k)
-		}
-		if k < 0 || (us < 0.013 && v > us) {
-			continue
-		}
-		lg, _ := math.Lgamma(k + 1)
-		if math.Log(v)+math.Log(invalpha)-math.Log(a/(us*us)+b) <= -lam+k*loglam-lg {
-			return int64(k)
-		}
-	}
-}
 
 // estimator is one row of the table: a curve fitted by
 // complexity.Baseline under the name fit.
@@ -220,6 +75,7 @@ type result struct {
 	lo, hi [4]float64
 	failed bool
 	method string
+	bt     float64 // headroom's self-backtest error (Report.BacktestError)
 }
 
 type caseResult struct {
@@ -291,6 +147,7 @@ func main() {
 	flag.Parse()
 	if *calibrate {
 		knots = []complexity.Knot{{M: 1, S: 0}} // bootstrap-only intervals
+		fitKnots = []complexity.Knot{{M: 1, S: 0}}
 	}
 
 	sizes := []int{1e4, 1e5, 1e6, 1e7}
@@ -302,8 +159,8 @@ func main() {
 	start := time.Now()
 	type job struct{ fam, si int }
 	var jobs []job
-	for fi, f := range families {
-		if *famFilter != "" && !strings.Contains(f.name, *famFilter) {
+	for fi, f := range sim.Families {
+		if *famFilter != "" && !strings.Contains(f.Name, *famFilter) {
 			continue
 		}
 		for si := range sizes {
@@ -369,9 +226,9 @@ var candNames = []string{"band-h", "powerlaw-h", "lognormal2-h", "lognormal2", "
 
 var showCands bool
 
-// knots are the model-error knots of headroom's intervals (nil: the
-// calibrated defaults).
-var knots []complexity.Knot
+// knots and fitKnots are the model-error and backtest-weight knots of
+// headroom's intervals (nil: the calibrated defaults).
+var knots, fitKnots []complexity.Knot
 
 func names() []string {
 	var s []string
@@ -390,7 +247,7 @@ func names() []string {
 // runPopulation simulates one library and samples it at each depth ratio.
 func runPopulation(seed uint64, fi, S int, ratios []float64, boot int) []caseResult {
 	rng := rand.New(rand.NewPCG(seed, uint64(fi)*1000003+uint64(S)))
-	a := families[fi].gen(rng, S)
+	a := sim.Families[fi].Gen(rng, S)
 	sum := 0.0
 	for _, v := range a {
 		sum += v
@@ -405,7 +262,7 @@ func runPopulation(seed uint64, fi, S int, ratios []float64, boot int) []caseRes
 		srng := rand.New(rand.NewPCG(seed^0xabcdef, uint64(fi)*1000003+uint64(S)*31+uint64(ri)))
 		var b complexity.Builder
 		for _, p := range a {
-			b.AddUnit(poissonRand(srng, N*p))
+			b.AddUnit(sim.Poisson(srng, N*p))
 		}
 		c, err := b.Counts()
 		if err != nil {
@@ -482,9 +339,10 @@ func runHeadroom(c complexity.Counts, boot int, seed uint64, targets []complexit
 		depths = append(depths, m*float64(c.Reads()))
 	}
 	rep := complexity.Analyze(c, complexity.Options{Depths: depths, Bootstrap: boot, Seed: seed, Threads: 1,
-		Gates: complexity.NoGates(), ModelError: knots, Reach: targets})
+		Gates: complexity.NoGates(), ModelError: knots, FitError: fitKnots, Reach: targets})
 	var r result
 	r.method = rep.Method
+	r.bt = rep.BacktestError
 	if rep.TotalMethod != "" {
 		r.method += "; total=" + rep.TotalMethod
 	}
@@ -504,19 +362,7 @@ func runHeadroom(c complexity.Counts, boot int, seed uint64, targets []complexit
 
 func relErr(pred, truth float64) float64 { return math.Abs(pred/truth - 1) }
 
-func quantile(v []float64, p float64) float64 {
-	if len(v) == 0 {
-		return math.NaN()
-	}
-	s := append([]float64(nil), v...)
-	sort.Float64s(s)
-	h := p * float64(len(s)-1)
-	i := int(h)
-	if i >= len(s)-1 {
-		return s[len(s)-1]
-	}
-	return s[i] + (h-float64(i))*(s[i+1]-s[i])
-}
+var quantile = benchstat.Quantile
 
 type summary struct {
 	med, p90 [4]float64
@@ -562,17 +408,7 @@ func summarize(cases []caseResult, ei int) summary {
 	return s
 }
 
-func pct(v float64) string {
-	switch {
-	case math.IsNaN(v):
-		return "–"
-	case math.IsInf(v, 1):
-		return "fail"
-	case v >= 10:
-		return fmt.Sprintf("%.0f%%", 100*v)
-	}
-	return fmt.Sprintf("%.1f%%", 100*v)
-}
+func pct(v float64) string { return benchstat.Pct(v, 10) }
 
 func writeTables(w io.Writer, all []caseResult) {
 	fmt.Fprintln(w, "### Overall: |relative error| of E[D(T)], median / 90th percentile; 95% interval coverage; failures")
@@ -606,7 +442,7 @@ func writeTables(w io.Writer, all []caseResult) {
 		fmt.Fprint(w, "---|")
 	}
 	fmt.Fprintln(w, "---|")
-	for fi, f := range families {
+	for fi, f := range sim.Families {
 		var cs []caseResult
 		for _, cr := range all {
 			if cr.fam == fi {
@@ -616,7 +452,7 @@ func writeTables(w io.Writer, all []caseResult) {
 		if len(cs) == 0 {
 			continue
 		}
-		fmt.Fprintf(w, "| %s |", f.name)
+		fmt.Fprintf(w, "| %s |", f.Name)
 		var hs summary
 		for ei := range ns {
 			s := summarize(cs, ei)
@@ -659,14 +495,15 @@ func writeCSV(w io.Writer, all []caseResult) {
 		k := strings.Fields(n)[0]
 		fmt.Fprintf(w, ",%s,%s_lo,%s_hi", k, k, k)
 	}
-	fmt.Fprintln(w, ",method,secs")
+	fmt.Fprintln(w, ",method,secs,backtest")
 	for _, cr := range all {
 		for k, m := range multiples {
-			fmt.Fprintf(w, "%s,%d,%g,%d,%d,0,%g,%.6g", families[cr.fam].name, cr.S, cr.ratio, cr.n, cr.d, m, cr.truth[k])
+			fmt.Fprintf(w, "%s,%d,%g,%d,%d,0,%g,%.6g", sim.Families[cr.fam].Name, cr.S, cr.ratio, cr.n, cr.d, m, cr.truth[k])
 			for _, r := range cr.res {
 				fmt.Fprintf(w, ",%.6g,%.6g,%.6g", r.pred[k], r.lo[k], r.hi[k])
 			}
-			fmt.Fprintf(w, ",%s,%.3f\n", cr.res[len(cr.res)-1].method, cr.secs)
+			h := cr.res[len(cr.res)-1]
+			fmt.Fprintf(w, ",%s,%.3f,%.6g\n", h.method, cr.secs, h.bt)
 		}
 	}
 }
@@ -675,12 +512,15 @@ func writeCSV(w io.Writer, all []caseResult) {
 // for each multiple, the smallest s_model such that 95% of the cases have
 // |log(Δ_true/Δ̂)| ≤ z·sqrt(s_boot² + s_model²), Δ = new units. With the
 // knots set to zero, headroom's lower bound is D + Δ̂·exp(−z·s_boot), which
-// gives s_boot per case.
+// gives s_boot per case. These are the knots without the adaptive term
+// (the simulated set alone); the defaults in use are fitted together with
+// that term by scripts/realdata/calibrate.py from this run's -csv and the
+// real-data benchmark's (complexity/adapt.go).
 func writeCalibration(w io.Writer, all []caseResult) {
 	const z = 1.959963984540054
 	hi := len(all[0].res) - 1
 	fmt.Fprintln(w)
-	fmt.Fprintln(w, "### Calibration of the interval model-error term (complexity.Options.ModelError; the defaults in complexity/interval.go)")
+	fmt.Fprintln(w, "### Model-error knots without the adaptive term (the defaults are fitted with it: scripts/realdata/calibrate.py)")
 	fmt.Fprintln(w)
 	fmt.Fprint(w, "knots: {1, 0}")
 	for k, m := range multiples {

@@ -1,0 +1,174 @@
+package dedup
+
+import (
+	"cmp"
+	"math/bits"
+	"slices"
+
+	"headroom/reads"
+)
+
+// maxKeyErrors is the most mismatches between two FASTQ keys (over the
+// leading bases of both mates) for one to be taken as the other's
+// sequencing error. Two: at a per-base error rate e over the 2k key bases,
+// a read's key has three or more errors with probability about
+// C(2k,3)·e³, 0.003% for k = 12 and e = 0.5%, against 0.7% for two
+// (BENCHMARKS.md "FASTQ keys and sequencing errors").
+const maxKeyErrors = 2
+
+// runLimit bounds the keys compared pairwise within one run of keys that
+// share two quarters; a longer run (low-complexity reads) is left as it
+// is, its keys matched exactly.
+const runLimit = 256
+
+// keyParts splits a key's bases (SeqA then SeqB, as packed by
+// reads.UMICode) into four quarters, each packed with its length. Two
+// keys within maxKeyErrors = 2 mismatches agree exactly on at least two
+// of the four (the pigeonhole principle).
+func keyParts(m umiMol) [4]uint64 {
+	la, lb := int(m.umi>>56), int(m.seqB>>56)
+	n := la + lb
+	base := func(i int) uint64 {
+		if i < la {
+			return m.umi >> (2 * (la - 1 - i)) & 3
+		}
+		return m.seqB >> (2 * (lb - 1 - (i - la))) & 3
+	}
+	var p [4]uint64
+	for q := 0; q < 4; q++ {
+		lo, hi := q*n/4, (q+1)*n/4
+		var c uint64
+		for i := lo; i < hi; i++ {
+			c = c<<2 | base(i)
+		}
+		p[q] = c | uint64(hi-lo)<<56
+	}
+	return p
+}
+
+// swapped returns m with its mates' keys exchanged.
+func swapped(m umiMol) umiMol {
+	m.umi, m.seqB = m.seqB, m.umi
+	return m
+}
+
+// keyDistance returns the mismatches between two keys of equal mate
+// lengths, or maxKeyErrors+1 when the lengths differ.
+func keyDistance(a, b umiMol) int {
+	if a.umi>>56 != b.umi>>56 || a.seqB>>56 != b.seqB>>56 {
+		return maxKeyErrors + 1
+	}
+	d := 0
+	for _, x := range [2]uint64{a.umi ^ b.umi, a.seqB ^ b.seqB} {
+		d += bits.OnesCount64((x | x>>1) & 0x0055555555555555)
+	}
+	return d
+}
+
+// collapseKeys merges FASTQ molecule keys within maxKeyErrors mismatches
+// (sequencing errors in the leading bases of the mates) by the
+// directional rule, among keys of one Class (library and UMI), and counts
+// the molecules in l. ms holds one library's keys; it is reordered.
+//
+// Candidates are found by sorting on each pair of the four quarters of
+// the key (keyParts) and comparing keys within each run of equal quarters:
+// six sorts, O(n log n) for n keys instead of the n² of all pairs. A pair
+// key holds its mates in lexicographic order (reads.Keyer.FASTQ), which an
+// error in the first bases can reverse, so each pair key also takes part
+// with its mates exchanged.
+func collapseKeys(ms []umiMol, l *libAcc, dist int64) {
+	if len(ms) == 0 {
+		return
+	}
+	slices.SortFunc(ms, func(a, b umiMol) int {
+		if c := cmp.Compare(a.group, b.group); c != 0 {
+			return c
+		}
+		return byAbundance(a, b)
+	})
+	// Entry e < len(ms) is key e as it is, entry len(ms)+e key e with its
+	// mates exchanged (pairs only).
+	n := int32(len(ms))
+	parts := make([][4]uint64, 2*n)
+	for i := range ms {
+		parts[i] = keyParts(ms[i])
+		if ms[i].seqB != 0 {
+			parts[int(n)+i] = keyParts(swapped(ms[i]))
+		}
+	}
+	entry := func(e int32) (int32, umiMol) {
+		if e >= n {
+			return e - n, swapped(ms[e-n])
+		}
+		return e, ms[e]
+	}
+	var edges [][2]int32 // both directions
+	var idx []int32
+	for x := 0; x < 4; x++ {
+		for y := x + 1; y < 4; y++ {
+			idx = idx[:0]
+			for i := range ms {
+				idx = append(idx, int32(i))
+				if ms[i].seqB != 0 {
+					idx = append(idx, n+int32(i))
+				}
+			}
+			key := func(e int32) [3]uint64 {
+				i, _ := entry(e)
+				return [3]uint64{ms[i].group, parts[e][x], parts[e][y]}
+			}
+			slices.SortFunc(idx, func(a, b int32) int {
+				ka, kb := key(a), key(b)
+				for j := range ka {
+					if c := cmp.Compare(ka[j], kb[j]); c != 0 {
+						return c
+					}
+				}
+				return cmp.Compare(a, b)
+			})
+			for i := 0; i < len(idx); {
+				j := i + 1
+				for j < len(idx) && key(idx[j]) == key(idx[i]) {
+					j++
+				}
+				if run := idx[i:j]; len(run) <= runLimit {
+					for p := range run {
+						a, ma := entry(run[p])
+						for q := p + 1; q < len(run); q++ {
+							b, mb := entry(run[q])
+							if a == b {
+								continue
+							}
+							if d := keyDistance(ma, mb); d >= 1 && d <= maxKeyErrors {
+								edges = append(edges, [2]int32{a, b}, [2]int32{b, a})
+							}
+						}
+					}
+				}
+				i = j
+			}
+		}
+	}
+	// Adjacency lists (compressed rows; a pair found by several quarter
+	// pairs is listed several times, which the directional pass ignores).
+	slices.SortFunc(edges, func(a, b [2]int32) int {
+		if c := cmp.Compare(a[0], b[0]); c != 0 {
+			return c
+		}
+		return cmp.Compare(a[1], b[1])
+	})
+	start := make([]int32, len(ms)+1)
+	for _, e := range edges {
+		start[e[0]+1]++
+	}
+	for i := 1; i < len(start); i++ {
+		start[i] += start[i-1]
+	}
+	l.keyMerged += directional(ms, func(a int, f func(b int)) {
+		for _, e := range edges[start[a]:start[a+1]] {
+			f(int(e[1]))
+		}
+	}, func(n int64, spots []reads.Spot) {
+		l.count(n, spots, dist)
+	})
+}
