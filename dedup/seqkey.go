@@ -46,6 +46,13 @@ func keyParts(m umiMol) [4]uint64 {
 	return p
 }
 
+// quarterKey hashes a class and two key quarters into one sort key.
+func quarterKey(class, a, b uint64) uint64 {
+	h := (class ^ a*0x9E3779B185EBCA87) * 0xC2B2AE3D27D4EB4F
+	h = (h ^ h>>29 ^ b) * 0x165667B19E3779F9
+	return h ^ h>>32
+}
+
 // swapped returns m with its mates' keys exchanged.
 func swapped(m umiMol) umiMol {
 	m.umi, m.seqB = m.seqB, m.umi
@@ -89,13 +96,6 @@ func collapseKeys(ms []umiMol, l *libAcc, dist int64) {
 	// Entry e < len(ms) is key e as it is, entry len(ms)+e key e with its
 	// mates exchanged (pairs only).
 	n := int32(len(ms))
-	parts := make([][4]uint64, 2*n)
-	for i := range ms {
-		parts[i] = keyParts(ms[i])
-		if ms[i].seqB != 0 {
-			parts[int(n)+i] = keyParts(swapped(ms[i]))
-		}
-	}
 	entry := func(e int32) (int32, umiMol) {
 		if e >= n {
 			return e - n, swapped(ms[e-n])
@@ -103,40 +103,38 @@ func collapseKeys(ms []umiMol, l *libAcc, dist int64) {
 		return e, ms[e]
 	}
 	var edges [][2]int32 // both directions
-	var idx []int32
+	// One sort key per entry and quarter pair: a hash of the class and the
+	// two quarters, so that each of the six sorts compares single words
+	// (a hash collision only adds a candidate, which the distance and class
+	// checks then drop).
+	type rec struct {
+		k uint64
+		e int32
+	}
+	var recs []rec
 	for x := 0; x < 4; x++ {
 		for y := x + 1; y < 4; y++ {
-			idx = idx[:0]
+			recs = recs[:0]
 			for i := range ms {
-				idx = append(idx, int32(i))
+				p := keyParts(ms[i]) // recomputed per pass: cheaper than holding 64 bytes a key
+				recs = append(recs, rec{quarterKey(ms[i].group, p[x], p[y]), int32(i)})
 				if ms[i].seqB != 0 {
-					idx = append(idx, n+int32(i))
+					p = keyParts(swapped(ms[i]))
+					recs = append(recs, rec{quarterKey(ms[i].group, p[x], p[y]), n + int32(i)})
 				}
 			}
-			key := func(e int32) [3]uint64 {
-				i, _ := entry(e)
-				return [3]uint64{ms[i].group, parts[e][x], parts[e][y]}
-			}
-			slices.SortFunc(idx, func(a, b int32) int {
-				ka, kb := key(a), key(b)
-				for j := range ka {
-					if c := cmp.Compare(ka[j], kb[j]); c != 0 {
-						return c
-					}
-				}
-				return cmp.Compare(a, b)
-			})
-			for i := 0; i < len(idx); {
+			slices.SortFunc(recs, func(a, b rec) int { return cmp.Compare(a.k, b.k) })
+			for i := 0; i < len(recs); {
 				j := i + 1
-				for j < len(idx) && key(idx[j]) == key(idx[i]) {
+				for j < len(recs) && recs[j].k == recs[i].k {
 					j++
 				}
-				if run := idx[i:j]; len(run) <= runLimit {
+				if run := recs[i:j]; len(run) > 1 && len(run) <= runLimit {
 					for p := range run {
-						a, ma := entry(run[p])
+						a, ma := entry(run[p].e)
 						for q := p + 1; q < len(run); q++ {
-							b, mb := entry(run[q])
-							if a == b {
+							b, mb := entry(run[q].e)
+							if a == b || ma.group != mb.group {
 								continue
 							}
 							if d := keyDistance(ma, mb); d >= 1 && d <= maxKeyErrors {
