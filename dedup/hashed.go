@@ -429,7 +429,7 @@ func (h *Hashed) Results(n int) []Result {
 			}
 		}
 		collapseGroups(group, h.libs, h.opt.OpticalDistance)
-		collapseKeys(keys, l, h.opt.OpticalDistance)
+		collapseKeys(keys, l, h.opt.OpticalDistance, h.opt.Threads)
 	}
 	return results(h.libs, n, h.shift)
 }
