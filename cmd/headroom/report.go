@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"html/template"
 	"math"
+	"sort"
 	"strings"
 
 	"gonum.org/v1/plot/vg"
@@ -142,6 +143,20 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 		"Plot": template.HTML(plotSVG), "PlotNote": note, "Level": fmt.Sprintf("%.0f%%", s.level*100),
 		"Notes": notes, "Settings": settings, "RunNotes": info.notes, "Decisions": decisions,
 	}
+	if len(est) > reportMaxRows {
+		// Thousands of cells or samples: the page summarises their
+		// distribution and shows the verdicts that need a look; the TSV
+		// and JSON have every row.
+		data["Rows"] = distributionRows(s, est)
+		data["Header"] = distributionHead(s)
+		data["Many"] = fmt.Sprintf("%d samples: the table shows how they are distributed (quantiles over samples), the decision lines and notes the first %d; every sample is in the TSV or JSON summary.", len(est), reportMaxRows)
+		if len(decisions) > reportMaxRows {
+			data["Decisions"] = decisions[:reportMaxRows]
+		}
+		if len(notes) > reportMaxRows {
+			data["Notes"] = notes[:reportMaxRows]
+		}
+	}
 	if pl != nil {
 		data["Plan"] = planReport(pl)
 	}
@@ -154,6 +169,67 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 		return nil, err
 	}
 	return b.Bytes(), nil
+}
+
+// reportMaxRows is how many samples the report lists one by one; past
+// it (per-cell runs) the table shows their distribution.
+const reportMaxRows = 100
+
+// distributionHead and distributionRows are the summary table of a run
+// with many samples: for each quantile over samples, the reads, the
+// duplicate fraction, the distinct units and each --at prediction.
+func distributionHead(s *shared) []reportHead {
+	h := []reportHead{{Text: "over samples", Left: true}, {Text: "reads"}, {Text: "dup now"}, {Text: "distinct"}}
+	for _, d := range s.depths {
+		h = append(h, reportHead{Text: "distinct at " + d.label})
+	}
+	return h
+}
+
+func distributionRows(s *shared, est []estimated) [][]reportCell {
+	cols := make([][]float64, 3+len(s.depths))
+	for _, e := range est {
+		r := e.rep
+		cols[0] = append(cols[0], float64(r.Reads))
+		cols[1] = append(cols[1], r.DupFraction)
+		cols[2] = append(cols[2], float64(r.Distinct))
+		for k, p := range r.Predictions[:len(s.depths)] {
+			cols[3+k] = append(cols[3+k], p.Distinct)
+		}
+	}
+	var rows [][]reportCell
+	for _, q := range []struct {
+		name string
+		p    float64
+	}{{"minimum", 0}, {"10%", 0.1}, {"median", 0.5}, {"90%", 0.9}, {"maximum", 1}} {
+		row := []reportCell{{Text: q.name, Class: "l"}}
+		for k, c := range cols {
+			v := quantileOf(c, q.p)
+			t := human(v)
+			if k == 1 {
+				t = percent(v)
+			}
+			row = append(row, reportCell{Text: t})
+		}
+		rows = append(rows, row)
+	}
+	return rows
+}
+
+// quantileOf is the p-quantile (nearest rank) of the values that are not
+// missing; NaN when none is.
+func quantileOf(v []float64, p float64) float64 {
+	var x []float64
+	for _, a := range v {
+		if !math.IsNaN(a) {
+			x = append(x, a)
+		}
+	}
+	if len(x) == 0 {
+		return math.NaN()
+	}
+	sort.Float64s(x)
+	return x[int(math.Round(p*float64(len(x)-1)))]
 }
 
 // intervalCell shows a value with its interval on a second, smaller line,
