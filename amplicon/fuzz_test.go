@@ -34,13 +34,7 @@ func fuzzRead(t *testing.T, data []byte) {
 	for _, l := range []Layout{LayoutAuto, TaxaAsRows, SamplesAsRows} {
 		tab, err := Read(bytes.NewReader(data), Options{Layout: l})
 		if err != nil {
-			var pe *ParseError
-			if !errors.As(err, &pe) {
-				t.Fatalf("error is not a *ParseError: %v", err)
-			}
-			if strings.ContainsAny(pe.Err.Error(), "\n\r") {
-				t.Fatalf("multi-line message %q", pe.Err.Error())
-			}
+			checkParseError(t, err)
 			continue
 		}
 		checkInvariants(t, tab)
@@ -95,15 +89,22 @@ func FuzzReadBIOM2(f *testing.F) {
 	f.Fuzz(func(t *testing.T, data []byte) {
 		tab, err := Read(bytes.NewReader(data), Options{})
 		if err != nil {
-			var pe *ParseError
-			if !errors.As(err, &pe) {
-				t.Fatalf("error is not a *ParseError: %v", err)
-			}
-			if strings.ContainsAny(pe.Err.Error(), "\n\r") {
-				t.Fatalf("multi-line message %q", pe.Err.Error())
-			}
+			checkParseError(t, err)
 			return
 		}
 		checkInvariants(t, tab)
 	})
+}
+
+// checkParseError fails unless err is a *ParseError with a one-line
+// message.
+func checkParseError(t *testing.T, err error) {
+	t.Helper()
+	var pe *ParseError
+	if !errors.As(err, &pe) {
+		t.Fatalf("error is not a *ParseError: %v", err)
+	}
+	if strings.ContainsAny(pe.Err.Error(), "\n\r") {
+		t.Fatalf("multi-line message %q", pe.Err.Error())
+	}
 }

@@ -72,6 +72,13 @@ type Library struct {
 // ErrDisorder reports coordinate-sorted input whose records are not.
 var ErrDisorder = errors.New("dedup: records out of coordinate order")
 
+// errorDominated is the per-base error rate of FASTQ key bases, estimated
+// from the keys merged, above which a note says the data look
+// error-dominated: 0.5% in the leading bases, past what the benchmark's
+// 1% read-wide rate puts there (about 0.35%; BENCHMARKS.md "FASTQ keys
+// and sequencing errors").
+const errorDominated = 0.005
+
 // progressEvery is the number of records between Progress calls.
 const progressEvery = 1 << 16
 
@@ -623,8 +630,17 @@ func (r *run) results() ([]Library, error) {
 				name = l.parent + "/" + name
 			}
 		}
-		if res[i].KeyMerged > 0 {
-			l.notes = append(l.notes, fmt.Sprintf("%d read keys one base from a more abundant key were merged into it as its sequencing errors (directional adjacency over the leading bases of the mates)", res[i].KeyMerged))
+		if m := res[i].KeyMerged; m > 0 {
+			l.notes = append(l.notes, fmt.Sprintf("%d read keys within two bases of a more abundant key were merged into it as its sequencing errors (directional adjacency over the leading bases of the mates)", m))
+			// Share of keys merged, per key base: a rough per-base error
+			// rate of the key's bases (a read's key has an error with
+			// probability about 2k·e for a pair).
+			if f := res[i].Fragments; f > 0 {
+				perBase := float64(m) / float64(f) / float64(2*r.opt.Key.KeyBases)
+				if perBase > errorDominated {
+					l.notes = append(l.notes, fmt.Sprintf("the reads look error-dominated (about %.1f%% errors per base in the key's leading bases, estimated from the keys merged): beyond the rates whose residual bias was measured (up to 1%% per base read-wide: +0.1%% distinct, +0.7%% at 10x; BENCHMARKS.md), so predictions may be high", 100*perBase))
+				}
+			}
 		}
 		if res[i].UMIMerged > 0 {
 			l.notes = append(l.notes, fmt.Sprintf("%d UMIs one base from a more abundant UMI at the same position were merged into it as its sequencing errors (directional adjacency, Smith et al. 2017; --umi-errors 0 keeps them apart)", res[i].UMIMerged))

@@ -379,6 +379,22 @@ func (h *Hashed) Results(n int) []Result {
 		more := t.sortedMore()
 		var group []umiMol // molecules with a UMI group, collapsed below
 		var keys []umiMol  // FASTQ molecules with packed keys, likewise
+		var keySpots []reads.Spot
+		if t.seqs {
+			// Sized once: the molecules and their spots are held until
+			// collapseKeys, and doubling slices would hold up to twice that.
+			used, nspots := 0, len(more)
+			for s := range t.segs {
+				used += t.segs[s].used
+				for _, sp := range t.segs[s].spot {
+					if sp != 0 {
+						nspots++
+					}
+				}
+			}
+			keys = make([]umiMol, 0, used)
+			keySpots = make([]reads.Spot, 0, nspots)
+		}
 		for s := range t.segs {
 			sg := &t.segs[s]
 			for i, k := range sg.keys {
@@ -400,7 +416,9 @@ func (h *Hashed) Results(n int) []Result {
 					}
 				}
 				if sg.cls != nil && sg.sa[i] != 0 {
-					keys = append(keys, umiMol{group: sg.cls[i], umi: sg.sa[i], seqB: sg.sb[i], lib: int32(li), n: c, spots: slices.Clone(spots)})
+					at := len(keySpots)
+					keySpots = append(keySpots, spots...)
+					keys = append(keys, umiMol{group: sg.cls[i], umi: sg.sa[i], seqB: sg.sb[i], lib: int32(li), n: c, spots: keySpots[at:len(keySpots):len(keySpots)]})
 					continue
 				}
 				if sg.grp != nil && sg.grp[i] != 0 {
@@ -411,7 +429,7 @@ func (h *Hashed) Results(n int) []Result {
 			}
 		}
 		collapseGroups(group, h.libs, h.opt.OpticalDistance)
-		collapseKeys(keys, l, h.opt.OpticalDistance)
+		collapseKeys(keys, l, h.opt.OpticalDistance, h.opt.Threads)
 	}
 	return results(h.libs, n, h.shift)
 }

@@ -4,6 +4,7 @@ import (
 	"cmp"
 	"math/bits"
 	"slices"
+	"sync"
 
 	"headroom/reads"
 )
@@ -46,6 +47,13 @@ func keyParts(m umiMol) [4]uint64 {
 	return p
 }
 
+// quarterKey hashes a class and two key quarters into one sort key.
+func quarterKey(class, a, b uint64) uint64 {
+	h := (class ^ a*0x9E3779B185EBCA87) * 0xC2B2AE3D27D4EB4F
+	h = (h ^ h>>29 ^ b) * 0x165667B19E3779F9
+	return h ^ h>>32
+}
+
 // swapped returns m with its mates' keys exchanged.
 func swapped(m umiMol) umiMol {
 	m.umi, m.seqB = m.seqB, m.umi
@@ -76,7 +84,7 @@ func keyDistance(a, b umiMol) int {
 // key holds its mates in lexicographic order (reads.Keyer.FASTQ), which an
 // error in the first bases can reverse, so each pair key also takes part
 // with its mates exchanged.
-func collapseKeys(ms []umiMol, l *libAcc, dist int64) {
+func collapseKeys(ms []umiMol, l *libAcc, dist int64, threads int) {
 	if len(ms) == 0 {
 		return
 	}
@@ -89,65 +97,77 @@ func collapseKeys(ms []umiMol, l *libAcc, dist int64) {
 	// Entry e < len(ms) is key e as it is, entry len(ms)+e key e with its
 	// mates exchanged (pairs only).
 	n := int32(len(ms))
-	parts := make([][4]uint64, 2*n)
-	for i := range ms {
-		parts[i] = keyParts(ms[i])
-		if ms[i].seqB != 0 {
-			parts[int(n)+i] = keyParts(swapped(ms[i]))
-		}
-	}
 	entry := func(e int32) (int32, umiMol) {
 		if e >= n {
 			return e - n, swapped(ms[e-n])
 		}
 		return e, ms[e]
 	}
-	var edges [][2]int32 // both directions
-	var idx []int32
-	for x := 0; x < 4; x++ {
-		for y := x + 1; y < 4; y++ {
-			idx = idx[:0]
-			for i := range ms {
-				idx = append(idx, int32(i))
-				if ms[i].seqB != 0 {
-					idx = append(idx, n+int32(i))
-				}
+	// One sort key per entry and quarter pair: a hash of the class and the
+	// two quarters, so that each of the six sorts compares single words
+	// (a hash collision only adds a candidate, which the distance and class
+	// checks then drop). The six passes run on up to threads goroutines,
+	// each with its own edge list, joined in pass order (and sorted below),
+	// so the result does not depend on threads.
+	type rec struct {
+		k uint64
+		e int32
+	}
+	pass := func(x, y int) (edges [][2]int32) {
+		recs := make([]rec, 0, 2*len(ms))
+		for i := range ms {
+			p := keyParts(ms[i]) // recomputed per pass: cheaper than holding 64 bytes a key
+			recs = append(recs, rec{quarterKey(ms[i].group, p[x], p[y]), int32(i)})
+			if ms[i].seqB != 0 {
+				p = keyParts(swapped(ms[i]))
+				recs = append(recs, rec{quarterKey(ms[i].group, p[x], p[y]), n + int32(i)})
 			}
-			key := func(e int32) [3]uint64 {
-				i, _ := entry(e)
-				return [3]uint64{ms[i].group, parts[e][x], parts[e][y]}
+		}
+		slices.SortFunc(recs, func(a, b rec) int { return cmp.Compare(a.k, b.k) })
+		for i := 0; i < len(recs); {
+			j := i + 1
+			for j < len(recs) && recs[j].k == recs[i].k {
+				j++
 			}
-			slices.SortFunc(idx, func(a, b int32) int {
-				ka, kb := key(a), key(b)
-				for j := range ka {
-					if c := cmp.Compare(ka[j], kb[j]); c != 0 {
-						return c
-					}
-				}
-				return cmp.Compare(a, b)
-			})
-			for i := 0; i < len(idx); {
-				j := i + 1
-				for j < len(idx) && key(idx[j]) == key(idx[i]) {
-					j++
-				}
-				if run := idx[i:j]; len(run) <= runLimit {
-					for p := range run {
-						a, ma := entry(run[p])
-						for q := p + 1; q < len(run); q++ {
-							b, mb := entry(run[q])
-							if a == b {
-								continue
-							}
-							if d := keyDistance(ma, mb); d >= 1 && d <= maxKeyErrors {
-								edges = append(edges, [2]int32{a, b}, [2]int32{b, a})
-							}
+			if run := recs[i:j]; len(run) > 1 && len(run) <= runLimit {
+				for p := range run {
+					a, ma := entry(run[p].e)
+					for q := p + 1; q < len(run); q++ {
+						b, mb := entry(run[q].e)
+						if a == b || ma.group != mb.group {
+							continue
+						}
+						if d := keyDistance(ma, mb); d >= 1 && d <= maxKeyErrors {
+							edges = append(edges, [2]int32{a, b}, [2]int32{b, a})
 						}
 					}
 				}
-				i = j
 			}
+			i = j
 		}
+		return edges
+	}
+	pairs := [6][2]int{{0, 1}, {0, 2}, {0, 3}, {1, 2}, {1, 3}, {2, 3}}
+	var found [6][][2]int32
+	var wg sync.WaitGroup
+	next := make(chan int, len(pairs))
+	for k := range pairs {
+		next <- k
+	}
+	close(next)
+	for w := 0; w < max(1, min(threads, len(pairs))); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for k := range next {
+				found[k] = pass(pairs[k][0], pairs[k][1])
+			}
+		}()
+	}
+	wg.Wait()
+	var edges [][2]int32 // both directions
+	for _, f := range found {
+		edges = append(edges, f...)
 	}
 	// Adjacency lists (compressed rows; a pair found by several quarter
 	// pairs is listed several times, which the directional pass ignores).

@@ -68,9 +68,11 @@ func TestCollapseKeys(t *testing.T) {
 		key(1, mut(a, 1, 5, 9), b, 1),    // three errors: another molecule
 		key(2, mut(a, 3), b, 1),          // another UMI: another molecule
 	}
-	l := libAcc{freq: map[int64]int64{}}
-	collapseKeys(ms, &l, 0)
-	if l.freq[23] != 1 || l.freq[1] != 2 || l.keyMerged != 3 {
-		t.Errorf("freq %v, merged %d; want {23: 1, 1: 2}, 3 merged", l.freq, l.keyMerged)
+	for _, threads := range []int{1, 3} {
+		l := libAcc{freq: map[int64]int64{}}
+		collapseKeys(slices.Clone(ms), &l, 0, threads)
+		if l.freq[23] != 1 || l.freq[1] != 2 || l.keyMerged != 3 {
+			t.Errorf("%d threads: freq %v, merged %d; want {23: 1, 1: 2}, 3 merged", threads, l.freq, l.keyMerged)
+		}
 	}
 }

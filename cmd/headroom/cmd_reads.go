@@ -9,8 +9,6 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
-	"sync/atomic"
-	"time"
 
 	"github.com/schollz/progressbar/v3"
 
@@ -277,45 +275,9 @@ func (a *app) readsInputs(c *readsConfig, progress bool, opt *dedup.Options) (*r
 		f.sizes = append(f.sizes, size)
 	}
 	if progress {
-		f.bars = make([]*progressbar.ProgressBar, len(paths))
-		opt.Progress = func(i int, records int64, done bool) {
-			bar := f.bars[i]
-			if bar == nil {
-				bar = progressbar.NewOptions64(f.sizes[i],
-					progressbar.OptionSetWriter(a.stderr),
-					progressbar.OptionSetDescription(f.inputs[i].Name),
-					progressbar.OptionShowBytes(true),
-					progressbar.OptionShowCount(),
-					progressbar.OptionThrottle(200*time.Millisecond),
-					progressbar.OptionSetWidth(30),
-					progressbar.OptionClearOnFinish(),
-				)
-				f.bars[i] = bar
-			}
-			if done {
-				bar.Finish()
-				f.bars[i] = nil
-				return
-			}
-			if records > 0 {
-				bar.Describe(fmt.Sprintf("%s: %d records", f.inputs[i].Name, records))
-				bar.Set64(f.counts[i].n.Load())
-			}
-		}
+		opt.Progress = f.progress(a.stderr)
 	}
 	return f, nil
-}
-
-// readsCountingReader counts the compressed bytes read, for progress.
-type readsCountingReader struct {
-	r io.Reader
-	n atomic.Int64
-}
-
-func (c *readsCountingReader) Read(p []byte) (int, error) {
-	n, err := c.r.Read(p)
-	c.n.Add(int64(n))
-	return n, err
 }
 
 // readsInputErr turns a counting error into "FILE:LINE: ..." or

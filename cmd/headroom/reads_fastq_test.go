@@ -210,3 +210,46 @@ func TestReadsPatternedFlowCell(t *testing.T) {
 		t.Errorf("--optical-distance 100: optical_dups %s, notes %s", got, n)
 	}
 }
+
+// TestReadsFASTQErrorNote: reads with 3% substitution errors per base
+// (300 molecules, 3,000 pairs) are merged back towards their molecules
+// and the notes call the data error-dominated; error-free copies are not.
+func TestReadsFASTQErrorNote(t *testing.T) {
+	rng := uint64(88172645463325252) // xorshift64 (Marsaglia 2003), a fixed stream
+	next := func() uint64 { rng ^= rng << 13; rng ^= rng >> 7; rng ^= rng << 17; return rng }
+	mols := make([][]byte, 300)
+	for i := range mols {
+		mols[i] = make([]byte, 60)
+		for j := range mols[i] {
+			mols[i][j] = "ACGT"[next()%4]
+		}
+	}
+	write := func(rate uint64) (string, string) {
+		var a, b strings.Builder
+		for i := 0; i < 3000; i++ {
+			m := append([]byte(nil), mols[next()%300]...)
+			for j := range m {
+				if next()%1000 < rate {
+					m[j] = "ACGT"[(strings.IndexByte("ACGT", m[j])+1+int(next()%3))%4]
+				}
+			}
+			fmt.Fprintf(&a, "@x%d/1\n%s\n+\n%s\n", i, m[:30], strings.Repeat("I", 30))
+			fmt.Fprintf(&b, "@x%d/2\n%s\n+\n%s\n", i, m[30:], strings.Repeat("I", 30))
+		}
+		return a.String(), b.String()
+	}
+	for _, c := range []struct {
+		rate  uint64 // per thousand bases
+		noisy bool
+	}{{30, true}, {0, false}} {
+		r1, r2 := write(c.rate)
+		code, rows, msg := runReadsIn(t, map[string]string{"e_1.fq": r1, "e_2.fq": r2}, "e_1.fq", "e_2.fq")
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, msg)
+		}
+		notes := rowField(rows["e_1.fq"], "notes")
+		if got := strings.Contains(notes, "error-dominated"); got != c.noisy {
+			t.Errorf("%d‰ errors: error-dominated note %v, want %v: %s", c.rate, got, c.noisy, notes)
+		}
+	}
+}

@@ -5,7 +5,6 @@ import (
 	_ "embed"
 	"fmt"
 	"html/template"
-	"math"
 	"strings"
 
 	"gonum.org/v1/plot/vg"
@@ -142,6 +141,20 @@ func renderReport(s *shared, info runInfo, est []estimated, pl *plan) ([]byte, e
 		"Plot": template.HTML(plotSVG), "PlotNote": note, "Level": fmt.Sprintf("%.0f%%", s.level*100),
 		"Notes": notes, "Settings": settings, "RunNotes": info.notes, "Decisions": decisions,
 	}
+	if len(est) > reportMaxRows {
+		// Thousands of cells or samples: the page summarises their
+		// distribution and shows the verdicts that need a look; the TSV
+		// and JSON have every row.
+		data["Rows"] = distributionRows(s, est)
+		data["Header"] = distributionHead(s)
+		data["Many"] = fmt.Sprintf("%d samples: the table shows how they are distributed (quantiles over samples), the decision lines and notes the first %d; every sample is in the TSV or JSON summary.", len(est), reportMaxRows)
+		if len(decisions) > reportMaxRows {
+			data["Decisions"] = decisions[:reportMaxRows]
+		}
+		if len(notes) > reportMaxRows {
+			data["Notes"] = notes[:reportMaxRows]
+		}
+	}
 	if pl != nil {
 		data["Plan"] = planReport(pl)
 	}
@@ -165,109 +178,6 @@ func intervalCell(v, lo, hi float64) reportCell {
 		return reportCell{Text: full}
 	}
 	return reportCell{Text: val, Sub: strings.TrimSuffix(iv, ")")}
-}
-
-// unitWord names what a command counts, for sentences.
-func unitWord(command string) string {
-	switch command {
-	case "reads":
-		return "molecules"
-	case "taxa":
-		return "taxa"
-	}
-	return "units"
-}
-
-// decisionLine says in words what the numbers mean for one sample: the
-// duplicates now, what the first --at depth beyond this run would add,
-// and where the first reach target is met, e.g. "LIB-03: 36% duplicates
-// now; 10x the reads would add 2.7k molecules (+63%); yield:0.1 at about
-// 25k reads".
-func decisionLine(s *shared, command string, e estimated) string {
-	r := e.rep
-	var parts []string
-	if !math.IsNaN(r.DupFraction) {
-		parts = append(parts, percent(r.DupFraction)+" duplicates now")
-	}
-	// The depth people ask about most is 10x; else the first one beyond
-	// this run.
-	order := make([]int, 0, len(s.depths))
-	for k, d := range s.depths {
-		if d.multiple == 10 {
-			order = append([]int{k}, order...)
-		} else {
-			order = append(order, k)
-		}
-	}
-	for _, k := range order {
-		d, p := s.depths[k], r.Predictions[k]
-		if p.Reads <= float64(r.Reads) || math.IsNaN(p.Distinct) || r.Distinct == 0 {
-			continue
-		}
-		gain := p.Distinct - float64(r.Distinct)
-		what := d.label + " reads"
-		if d.multiple > 0 {
-			what = d.label + " the reads"
-		}
-		parts = append(parts, fmt.Sprintf("%s would add %s %s (%+.0f%%)", what, human(gain), unitWord(command), 100*gain/float64(r.Distinct)))
-		break
-	}
-	for _, a := range e.reach {
-		switch {
-		case math.IsNaN(a.reads):
-			parts = append(parts, a.spec.label+" not reached within 100x")
-		case a.spec.kind == "yield":
-			parts = append(parts, fmt.Sprintf("more reads stop paying (%s) at about %s reads", a.spec.label, human(a.reads)))
-		default:
-			parts = append(parts, fmt.Sprintf("%s at about %s reads", a.spec.label, human(a.reads)))
-		}
-		break
-	}
-	if len(parts) == 0 {
-		parts = append(parts, "nothing to estimate")
-	}
-	return e.in.name + ": " + strings.Join(parts, "; ")
-}
-
-// planView is the plan as the report shows it.
-type planView struct {
-	Heading string
-	Rows    [][]reportCell
-	Bars    template.HTML
-	Notes   []string
-}
-
-// planReport renders the plan table and an inline SVG bar chart of the
-// next pool's shares.
-func planReport(pl *plan) planView {
-	v := planView{Heading: planText(pl)[:strings.Index(planText(pl), "\n")]}
-	var svg strings.Builder
-	const barH, gap, labelW, barW = 18, 6, 180, 600
-	fmt.Fprintf(&svg, `<svg xmlns="http://www.w3.org/2000/svg" width="%d" height="%d" role="img" aria-label="share of the next pool per sample">`,
-		labelW+barW+80, len(pl.rows)*(barH+gap)+gap)
-	for i, r := range pl.rows {
-		v.Rows = append(v.Rows, []reportCell{{Text: r.name, Class: "l"}, {Text: human(float64(r.readsNow))}, {Text: percent(r.shareNow)},
-			{Text: human(float64(r.readsNext))}, {Text: percent(r.poolShare)}, intervalCell(r.distinctAfter, r.lo, r.hi),
-			{Text: "+" + human(r.distinctAfter-float64(r.distinctNow))}, {Text: percent(r.dupAfter)}, {Text: r.action, Class: "l"}})
-		y := gap + i*(barH+gap)
-		w := 0.0
-		if !math.IsNaN(r.poolShare) {
-			w = r.poolShare * barW
-		}
-		fmt.Fprintf(&svg, `<text x="%d" y="%d" font-size="12" text-anchor="end">%s</text>`, labelW-6, y+barH-5, template.HTMLEscapeString(r.name))
-		fmt.Fprintf(&svg, `<rect x="%d" y="%d" width="%.1f" height="%d" fill="#2f6f9f"/>`, labelW, y, w, barH)
-		fmt.Fprintf(&svg, `<text x="%.1f" y="%d" font-size="12">%s</text>`, float64(labelW)+w+6, y+barH-5, percent(r.poolShare))
-	}
-	svg.WriteString("</svg>")
-	v.Bars = template.HTML(svg.String())
-	v.Notes = append(v.Notes, pl.legend())
-	v.Notes = append(v.Notes, pl.notes...)
-	for _, r := range pl.rows {
-		for _, n := range r.notes {
-			v.Notes = append(v.Notes, r.name+": "+n)
-		}
-	}
-	return v
 }
 
 func verdictClass(v complexity.Verdict) string {

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/xml"
+	"fmt"
 	"image/png"
 	"io"
 	"os"
@@ -175,4 +176,26 @@ func chromiumOut(ctx context.Context, t *testing.T, bin string, args ...string) 
 		t.Logf("chromium, try %d: %v", try+1, err)
 	}
 	return out, err
+}
+
+// TestReportManySamples: past reportMaxRows samples (per-cell runs) the
+// report summarises the distribution instead of listing every row, and
+// says so; the plot keeps its readable subset.
+func TestReportManySamples(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("sample\ttimes_seen\tunits\n")
+	for i := 0; i < reportMaxRows+20; i++ {
+		fmt.Fprintf(&b, "CELL-%04d\t1\t%d\nCELL-%04d\t2\t%d\nCELL-%04d\t3\t%d\n", i, 200+i, i, 60+i%7, i, 20+i%5)
+	}
+	in := writeFile(t, dir, "cells.tsv", b.String())
+	rep := filepath.Join(dir, "r.html")
+	if code, _, stderr := runCLI(t, "", "counts", "--bootstrap", "0", "-o", filepath.Join(dir, "s.tsv"), "--report", rep, in); code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	page, _ := os.ReadFile(rep)
+	if !strings.Contains(string(page), fmt.Sprintf("%d samples: the table shows how they are distributed", reportMaxRows+20)) ||
+		!strings.Contains(string(page), ">median<") || strings.Contains(string(page), `<td class="l">CELL-0119</td>`) {
+		t.Errorf("report of %d samples does not summarise them", reportMaxRows+20)
+	}
 }
