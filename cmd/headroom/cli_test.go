@@ -227,3 +227,17 @@ func TestOutputIsInput(t *testing.T) {
 		}
 	}
 }
+
+// TestPipelineHazards: --strict without a gate warns on stderr (it could
+// never fail a sample); --progress always reports the estimation phase on
+// stderr and leaves stdout to the summary.
+func TestPipelineHazards(t *testing.T) {
+	code, out, stderr := runCLI(t, "", "counts", "--bootstrap", "0", "--strict", demoCounts)
+	if code != 0 || !strings.Contains(stderr, "--strict without a gate") || !strings.HasPrefix(out, "sample\t") {
+		t.Errorf("--strict without gates: exit %d, stderr %q", code, stderr)
+	}
+	code, out, stderr = runCLI(t, "", "counts", "--bootstrap", "0", "--progress", "always", demoCounts)
+	if code != 0 || !strings.Contains(stderr, "estimating") || !strings.HasPrefix(out, "sample\t") {
+		t.Errorf("--progress always: exit %d, stderr %q", code, stderr)
+	}
+}
