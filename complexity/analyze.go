@@ -26,6 +26,10 @@ type Options struct {
 	// When set, the extrapolation is checked admissible up to the reach
 	// horizon (100 times the observed reads) as well.
 	Reach []Target
+	// Progress, when not nil, is called after each bootstrap replicate,
+	// from any of the Threads goroutines (for a progress bar; it must not
+	// block). It does not change any result.
+	Progress func()
 	// ModelError are the knots of the model-error term of extrapolation
 	// intervals (see Knot). nil means the calibrated defaults; a single
 	// knot {1, 0} gives bootstrap-only intervals (used to calibrate).

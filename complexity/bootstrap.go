@@ -25,7 +25,7 @@ func (a *analysis) bootstrap(r *Report) {
 	if B <= 0 || !a.kind.bootstrapped() {
 		return
 	}
-	a.reps = refitReplicates(a.c, a.cv.Model, r.Method, a.maxT, B, a.opt.Seed, a.threads)
+	a.reps = refitReplicates(a.c, a.cv.Model, r.Method, a.maxT, B, a.opt.Seed, a.threads, a.opt.Progress)
 	failed := 0
 	for _, cv := range a.reps.curves {
 		if cv.Model == nil {
@@ -40,7 +40,8 @@ func (a *analysis) bootstrap(r *Report) {
 // refitReplicates refits m (method names it in errors) on B resampled
 // tables, in parallel over threads goroutines. Replicate b always uses
 // stream b of seed, so the result is the same for any thread count.
-func refitReplicates(c Counts, m Model, method string, maxT float64, B int, seed uint64, threads int) *replicates {
+// progress, when not nil, is called after each replicate.
+func refitReplicates(c Counts, m Model, method string, maxT float64, B int, seed uint64, threads int, progress func()) *replicates {
 	reps := &replicates{curves: make([]Curve, B), scale: make([]float64, B), limits: make([]float64, B)}
 	var wg sync.WaitGroup
 	next := make(chan int)
@@ -54,6 +55,9 @@ func refitReplicates(c Counts, m Model, method string, maxT float64, B int, seed
 				reps.scale[b] = float64(rc.Reads()) / float64(c.Reads())
 				reps.limits[b] = missing
 				rm, err := refit(method, rc, maxT, m)
+				if progress != nil {
+					progress()
+				}
 				if err != nil {
 					continue
 				}

@@ -236,7 +236,7 @@ func TestPipelineHazards(t *testing.T) {
 	if code != 0 || !strings.Contains(stderr, "--strict without a gate") || !strings.HasPrefix(out, "sample\t") {
 		t.Errorf("--strict without gates: exit %d, stderr %q", code, stderr)
 	}
-	code, out, stderr = runCLI(t, "", "counts", "--bootstrap", "0", "--progress", "always", demoCounts)
+	code, out, stderr = runCLI(t, "", "counts", "--bootstrap", "20", "--threads", "2", "--progress", "always", demoCounts)
 	if code != 0 || !strings.Contains(stderr, "estimating") || !strings.HasPrefix(out, "sample\t") {
 		t.Errorf("--progress always: exit %d, stderr %q", code, stderr)
 	}

@@ -5,6 +5,7 @@ import (
 	"math"
 	"strings"
 	"sync"
+	"sync/atomic"
 
 	"headroom/complexity"
 )
@@ -64,10 +65,10 @@ type estimated struct {
 
 // pass says what one estimation pass over the samples computes.
 type pass struct {
-	curve    bool        // the curve points (--curve, --plot, --report)
-	noBoot   bool        // point estimates only (the plan's first pass)
-	extra    [][]float64 // per sample, depths predicted after the --at ones
-	progress func(done int)
+	curve    bool           // the curve points (--curve, --plot, --report)
+	noBoot   bool           // point estimates only (the plan's first pass)
+	extra    [][]float64    // per sample, depths predicted after the --at ones
+	progress func(done int) // units of work done: bootstrap replicates (or one per sample without)
 }
 
 // estimateAll runs complexity.Analyze on every sample with the shared
@@ -83,6 +84,13 @@ func estimateAll(s *shared, samples []sampleInput, p pass) []estimated {
 	}
 	jobs := make(chan int)
 	done := make(chan struct{}, len(samples))
+	// Progress counts bootstrap replicates, so that one large sample shows
+	// its progress too; a sample that needs none counts as its share.
+	units := int64(max(1, s.bootstrap))
+	if p.noBoot {
+		units = 1
+	}
+	var work atomic.Int64
 	var wg sync.WaitGroup
 	for w := 0; w < workers; w++ {
 		wg.Add(1)
@@ -97,6 +105,14 @@ func estimateAll(s *shared, samples []sampleInput, p pass) []estimated {
 				if p.noBoot {
 					o.Bootstrap = 0
 				}
+				var mine atomic.Int64
+				if p.progress != nil && !p.noBoot {
+					o.Progress = func() {
+						if mine.Add(1) <= units {
+							p.progress(int(work.Add(1)))
+						}
+					}
+				}
 				e := estimated{in: samples[i], rep: complexity.Analyze(samples[i].counts, o)}
 				for k, r := range e.rep.Reach {
 					// Notes name the target as the user wrote it (distinct:3x).
@@ -104,6 +120,9 @@ func estimateAll(s *shared, samples []sampleInput, p pass) []estimated {
 					e.reach = append(e.reach, reachAnswer{spec: s.reaches[k], reads: r.Reads, lo: r.Lo, hi: r.Hi, note: note})
 				}
 				out[i] = e
+				if rest := units - mine.Load(); rest > 0 && p.progress != nil {
+					p.progress(int(work.Add(rest)))
+				}
 				done <- struct{}{}
 			}
 		}()
@@ -114,11 +133,8 @@ func estimateAll(s *shared, samples []sampleInput, p pass) []estimated {
 		}
 		close(jobs)
 	}()
-	for k := range samples {
+	for range samples {
 		<-done
-		if p.progress != nil {
-			p.progress(k + 1)
-		}
 	}
 	wg.Wait()
 	return out
@@ -207,7 +223,7 @@ func (a *app) estimateAndWrite(s *shared, info runInfo, samples []sampleInput) e
 		}
 		p.extra = pl.depths()
 	}
-	bar := s.bar(a, len(samples), "estimating")
+	bar := s.bar(a, len(samples)*max(1, s.bootstrap), "estimating")
 	p.progress = bar.set
 	est := estimateAll(s, samples, p)
 	bar.finish()

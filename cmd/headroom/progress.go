@@ -1,6 +1,7 @@
 package main
 
 import (
+	"sync"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
@@ -8,14 +9,17 @@ import (
 
 // bar is a progress bar on stderr over a count of items, or nil when
 // progress is off; its methods do nothing on nil.
-type bar struct{ b *progressbar.ProgressBar }
+type bar struct {
+	mu sync.Mutex // set is called from the estimating goroutines
+	b  *progressbar.ProgressBar
+}
 
 // bar starts a bar over n items of work, described by what.
 func (s *shared) bar(a *app, n int, what string) *bar {
 	if !s.showProgress(a) || n == 0 {
 		return nil
 	}
-	return &bar{progressbar.NewOptions(n,
+	return &bar{b: progressbar.NewOptions(n,
 		progressbar.OptionSetWriter(a.stderr),
 		progressbar.OptionSetDescription(what),
 		progressbar.OptionShowCount(),
@@ -28,7 +32,11 @@ func (s *shared) bar(a *app, n int, what string) *bar {
 // set says that k items are done.
 func (b *bar) set(k int) {
 	if b != nil {
-		b.b.Set(k)
+		b.mu.Lock()
+		if int64(k) > b.b.State().CurrentNum {
+			b.b.Set(k)
+		}
+		b.mu.Unlock()
 	}
 }
 
