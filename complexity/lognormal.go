@@ -139,7 +139,8 @@ func fitLognormalHist(hs hist, hint []float64) (*gridModel, error) {
 	var best []float64
 	bestV := math.Inf(1)
 	if hint != nil {
-		best, bestV = nelderMead(f.nll, hint, []float64{0.1, 0.05}, nmTolRefit, 100)
+		tol, ev := warmTol(hs.tight, 100)
+		best, bestV = nelderMead(f.nll, hint, []float64{0.1, 0.05}, tol, ev)
 	} else {
 		// Starts: the mean count of seen units gives the scale; try a low,
 		// middle and high spread, keep the best.
@@ -247,7 +248,8 @@ func fitLognormal2Hist(hs hist, single, hint []float64) (*gridModel, error) {
 	var best []float64
 	bestV := math.Inf(1)
 	if hint != nil {
-		best, bestV = nelderMead(f.nll, hint, []float64{0.1, 0.05, 0.1, 0.05, 0.2}, nmTolRefit, 300)
+		tol, ev := warmTol(hs.tight, 300)
+		best, bestV = nelderMead(f.nll, hint, []float64{0.1, 0.05, 0.1, 0.05, 0.2}, tol, ev)
 	} else {
 		if single == nil {
 			m, err := fitLognormalHist(hs, nil)
@@ -295,3 +297,15 @@ func fitLognormal2Hist(hs hist, single, hint []float64) (*gridModel, error) {
 // replicate's sampling spread is orders of magnitude larger than the
 // parameter error 1e−6 per unit leaves.
 const nmTolRefit = 1e-6
+
+// warmTol returns the tolerance and evaluation cap of a warm-started
+// descent whose bootstrap refit is capped at evals: with tight (the
+// backtest, hist.tight) the first fit's nmTol and four times the cap, so
+// that one descent from a start near the optimum ends where the first
+// fit's three starts would.
+func warmTol(tight bool, evals int) (float64, int) {
+	if tight {
+		return nmTol, 4 * evals
+	}
+	return nmTolRefit, evals
+}

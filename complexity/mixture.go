@@ -46,11 +46,14 @@ var censorJ = 15
 // fractional (expected) tables can be fitted too.
 type hist struct {
 	J    int
-	free bool      // free head: condition on 1 <= X <= J (see mixLogLik)
-	h    []float64 // len J+1; h[0] unused
-	tail float64
-	d    float64 // distinct = sum h + tail
-	n    float64 // reads
+	free bool // free head: condition on 1 <= X <= J (see mixLogLik)
+	// tight: a warm start descends to nmTol (the backtest's refit, whose
+	// start is only near the optimum), not to nmTolRefit (warmTol).
+	tight bool
+	h     []float64 // len J+1; h[0] unused
+	tail  float64
+	d     float64 // distinct = sum h + tail
+	n     float64 // reads
 }
 
 // newHist builds the censored histogram of c.
@@ -96,7 +99,29 @@ type kernel struct {
 	// rows15, for J = 15 only: per grid point the 17 values mixLogLik
 	// sums, P(1..15 | λ_k), P(X > 15 | λ_k), 1 − e^{−λ_k}, contiguous.
 	rows15 []float64
+	// pin[k] = P(1 ≤ X ≤ J | λ_k), summed directly (what a free head
+	// conditions on); freeHi is one past the last grid point where it is
+	// at least freeNegligible. rowsFree15, for J = 15: per grid point
+	// P(1..15 | λ_k) and pin[k], contiguous (stride rowFree15).
+	pin        []float64
+	freeHi     int
+	rowsFree15 []float64
 }
+
+// freeNegligible is the P(1 ≤ X ≤ J | λ) below which a grid point is left
+// out of free-head likelihoods (mixLogLik with hist.free) and curves. Such
+// a point lies far above J (for J = 15, λ > 130, log λ > 4.9). A left-out
+// point changes a class probability P(j) = Σ_k g_k P(j | λ_k) by less
+// than g_k·freeNegligible: the weights of every family are at most e^{25}
+// times their largest value below the cut (the power law with α = −1 over
+// the whole grid; lognormal weights peak at 1), so by less than 1e−29
+// absolute per point, while every P(j) of an observed class is at least
+// the cutoff cell's P(1 | λ) ≥ 3e−7 (λ at gridLo): 1e−21 relative, five
+// orders below float64 rounding.
+const freeNegligible = 1e-40
+
+// rowFree15 is the stride of kernel.rowsFree15.
+const rowFree15 = 16
 
 var (
 	kernelMu    sync.Mutex
@@ -124,11 +149,28 @@ func gridKernel(J int) *kernel {
 		// P(X > J) = P(J+1, λ), the lower regularised incomplete gamma.
 		k.tail[i] = mathext.GammaIncReg(float64(J+1), l)
 	}
+	k.pin = make([]float64, n)
+	for i, row := range k.p {
+		var s float64
+		for j := 1; j <= J; j++ {
+			s += row[j]
+		}
+		k.pin[i] = s
+	}
+	k.freeHi = n
+	for k.freeHi > 0 && k.pin[k.freeHi-1] < freeNegligible {
+		k.freeHi--
+	}
 	if J == 15 {
 		k.rows15 = make([]float64, 0, n*row15)
 		for i := 0; i < n; i++ {
 			k.rows15 = append(k.rows15, k.p[i][1:]...)
 			k.rows15 = append(k.rows15, k.tail[i], k.seen[i])
+		}
+		k.rowsFree15 = make([]float64, 0, n*rowFree15)
+		for i := 0; i < n; i++ {
+			k.rowsFree15 = append(k.rowsFree15, k.p[i][1:]...)
+			k.rowsFree15 = append(k.rowsFree15, k.pin[i])
 		}
 	}
 	kernelCache[J] = k
@@ -155,6 +197,9 @@ const row15 = 17
 // censoring point in use (J = 15, censorJ) mixSums15 does them with the
 // accumulators in registers, same operations in the same order.
 func mixLogLik(k *kernel, hs *hist, g []float64, lo, hi int, buf []float64) float64 {
+	if hs.free {
+		return mixLogLikFree(k, hs, g, lo, hi, buf)
+	}
 	J := hs.J
 	pj := buf[:J+1]
 	var pt, ps float64
@@ -177,23 +222,8 @@ func mixLogLik(k *kernel, hs *hist, g []float64, lo, hi int, buf []float64) floa
 			ps += w * k.seen[i]
 		}
 	}
-	ll := 0.0
-	for j := 1; j <= J; j++ {
-		if hs.h[j] > 0 {
-			if pj[j] <= 0 {
-				return math.Inf(-1)
-			}
-			ll += hs.h[j] * math.Log(pj[j])
-		}
-	}
-	if hs.free {
-		pin := ps - pt
-		if !(pin > 0) {
-			return math.Inf(-1)
-		}
-		return ll - (hs.d-hs.tail)*math.Log(pin)
-	}
-	if !(ps > 0) {
+	ll, ok := classLogLik(hs, pj)
+	if !ok || !(ps > 0) {
 		return math.Inf(-1)
 	}
 	if hs.tail > 0 {
@@ -203,6 +233,93 @@ func mixLogLik(k *kernel, hs *hist, g []float64, lo, hi int, buf []float64) floa
 		ll += hs.tail * math.Log(pt)
 	}
 	return ll - hs.d*math.Log(ps)
+}
+
+// mixLogLikFree is mixLogLik with a free head: the sums run over grid
+// points below kernel.freeHi only, and P(1 ≤ X ≤ J) is summed directly
+// (kernel.pin) rather than as P(X ≥ 1) − P(X > J), which would cancel
+// where much weight lies above J.
+func mixLogLikFree(k *kernel, hs *hist, g []float64, lo, hi int, buf []float64) float64 {
+	J := hs.J
+	pj := buf[:J+1]
+	hi = min(hi, k.freeHi)
+	if lo >= hi {
+		return math.Inf(-1)
+	}
+	var pin float64
+	if J == 15 && k.rowsFree15 != nil {
+		pin = mixSumsFree15(k.rowsFree15, g[:hi-lo], lo, pj)
+	} else {
+		for j := range pj {
+			pj[j] = 0
+		}
+		for i := lo; i < hi; i++ {
+			w := g[i-lo]
+			if w == 0 {
+				continue
+			}
+			row := k.p[i]
+			for j := 1; j <= J; j++ {
+				pj[j] += w * row[j]
+			}
+			pin += w * k.pin[i]
+		}
+	}
+	ll, ok := classLogLik(hs, pj)
+	if !ok || !(pin > 0) {
+		return math.Inf(-1)
+	}
+	return ll - (hs.d-hs.tail)*math.Log(pin)
+}
+
+// classLogLik is Σ_{j≤J} h_j log pj[j]; false when a class with units
+// has zero probability.
+func classLogLik(hs *hist, pj []float64) (float64, bool) {
+	ll := 0.0
+	for j := 1; j <= hs.J; j++ {
+		if hs.h[j] > 0 {
+			if pj[j] <= 0 {
+				return 0, false
+			}
+			ll += hs.h[j] * math.Log(pj[j])
+		}
+	}
+	return ll, true
+}
+
+// mixSumsFree15 sets pj[j] = Σ_i g_i P(j | λ_{lo+i}), j = 1..15, and
+// returns Σ_i g_i P(1 ≤ X ≤ 15 | λ), over the rows of kernel.rowsFree15
+// from lo, with the accumulators in registers (two passes of eight).
+func mixSumsFree15(rows, g []float64, lo int, pj []float64) (pin float64) {
+	rows = rows[lo*rowFree15:]
+	var p1, p2, p3, p4, p5, p6, p7, p8 float64
+	for i, w := range g {
+		r := (*[rowFree15]float64)(rows[i*rowFree15:])
+		p1 += w * r[0]
+		p2 += w * r[1]
+		p3 += w * r[2]
+		p4 += w * r[3]
+		p5 += w * r[4]
+		p6 += w * r[5]
+		p7 += w * r[6]
+		p8 += w * r[7]
+	}
+	var p9, p10, p11, p12, p13, p14, p15 float64
+	for i, w := range g {
+		r := (*[rowFree15]float64)(rows[i*rowFree15:])
+		p9 += w * r[8]
+		p10 += w * r[9]
+		p11 += w * r[10]
+		p12 += w * r[11]
+		p13 += w * r[12]
+		p14 += w * r[13]
+		p15 += w * r[14]
+		pin += w * r[15]
+	}
+	pj = pj[:16]
+	pj[0], pj[1], pj[2], pj[3], pj[4], pj[5], pj[6], pj[7] = 0, p1, p2, p3, p4, p5, p6, p7
+	pj[8], pj[9], pj[10], pj[11], pj[12], pj[13], pj[14], pj[15] = p8, p9, p10, p11, p12, p13, p14, p15
+	return pin
 }
 
 // mixSums15 sets pj[j] = Σ_i g_i P(j | λ_{lo+i}), j = 1..15, and returns
@@ -264,13 +381,17 @@ type gridModel struct {
 
 func newGridModel(name string, hs *hist, k *kernel, lo, hi int, g []float64, params []float64) *gridModel {
 	m := &gridModel{name: name, n: hs.n, d: hs.d, params: params}
-	var ps, pt float64
+	var ps, pt, pin float64
+	if hs.free {
+		hi = min(hi, k.freeHi) // as mixLogLikFree
+	}
 	for i := lo; i < hi; i++ {
 		if g[i-lo] > 0 {
 			m.lam = append(m.lam, k.lam[i])
 			m.g = append(m.g, g[i-lo])
 			ps += g[i-lo] * k.seen[i]
 			pt += g[i-lo] * k.tail[i]
+			pin += g[i-lo] * k.pin[i]
 		}
 	}
 	m.ge = make([]float64, len(m.g))
@@ -278,7 +399,7 @@ func newGridModel(name string, hs *hist, k *kernel, lo, hi int, g []float64, par
 		m.ge[i] = w * math.Exp(-m.lam[i])
 	}
 	if hs.free {
-		m.a = (hs.d - hs.tail) / (ps - pt)
+		m.a = (hs.d - hs.tail) / pin
 	} else {
 		m.a = hs.d / ps
 	}
@@ -468,14 +589,26 @@ func (f *paretoFit) weights(p []float64) (lo, hi int, ok bool) {
 	if hi > n {
 		hi = n
 	}
+	if f.hs.free {
+		hi = min(hi, f.k.freeHi) // the rest is not summed (mixLogLikFree)
+	}
 	if lo >= hi {
 		return 0, 0, false
 	}
 	g := f.g[:hi-lo]
+	// The weight e^{−α(x − a)} (scaled by e^{−α a} so weights stay near 1
+	// at the cutoff) by the lattice recurrence w_{i+1} = w_i e^{−α·step},
+	// recomputed directly every gaussAnchor points as in gaussGrid: the
+	// per-point exponential was most of the cost of a power-law fit.
+	r := math.Exp(-alpha * gridStep)
+	var w float64
 	for i := lo; i < hi; i++ {
 		x := f.k.x[i]
-		// Scale by e^{−α a} so weights stay near 1 at the cutoff.
-		w := math.Exp(-alpha * (x - a))
+		if (i-lo)%gaussAnchor == 0 {
+			w = math.Exp(-alpha * (x - a))
+		} else {
+			w *= r
+		}
 		// Share of the cell inside [a, b].
 		share := (math.Min(x+gridStep/2, b) - math.Max(x-gridStep/2, a)) / gridStep
 		g[i-lo] = w * math.Max(0, math.Min(1, share))
@@ -514,7 +647,8 @@ func fitParetoHist(hs hist, hint []float64, band bool) (*gridModel, error) {
 	bestV := math.Inf(1)
 	if hint != nil {
 		step := []float64{0.1, 0.05, 0.05}[:len(hint)]
-		best, bestV = nelderMead(f.nll, hint, step, nmTolRefit, 150)
+		tol, ev := warmTol(hs.tight, 150)
+		best, bestV = nelderMead(f.nll, hint, step, tol, ev)
 	} else {
 		mbar := math.Log(hs.n / hs.d)
 		for _, st := range [][]float64{{mbar - 2, 1}, {mbar - 4, 0.5}, {mbar - 1, 2}} {

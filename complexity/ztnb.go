@@ -77,6 +77,7 @@ type ztnbData struct {
 	u     []float64
 	J     int  // censoring point; 0 = none
 	free  bool // free head: condition on 1 <= X <= J
+	tight bool // warm start to nmTol (hist.tight)
 	tail  float64
 	d     float64
 	lgj1  []float64 // lgamma(j+1)
@@ -165,7 +166,7 @@ func fitZTNBAll(c Counts) (Model, error) {
 
 // fitZTNBHist fits the censored histogram hs.
 func fitZTNBHist(hs hist, hint []float64) (*ztnbModel, error) {
-	z := ztnbData{J: hs.J, free: hs.free, tail: hs.tail, d: hs.d}
+	z := ztnbData{J: hs.J, free: hs.free, tight: hs.tight, tail: hs.tail, d: hs.d}
 	for j := 1; j <= hs.J; j++ {
 		if hs.h[j] > 0 {
 			z.j = append(z.j, float64(j))
@@ -191,7 +192,8 @@ func fitZTNB(z *ztnbData, n float64, f1 int64, hint []float64) (*ztnbModel, erro
 	var best []float64
 	bestV := math.Inf(1)
 	if hint != nil {
-		best, bestV = nelderMead(z.nll, hint, []float64{0.1, 0.1}, nmTolRefit, 100)
+		tol, ev := warmTol(z.tight, 100)
+		best, bestV = nelderMead(z.nll, hint, []float64{0.1, 0.1}, tol, ev)
 	} else {
 		mbar := n / z.d
 		for _, lk := range []float64{-1, 0.5, 3} {
