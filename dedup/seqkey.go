@@ -155,9 +155,10 @@ func collapseKeys(ms []umiMol, l *libAcc, dist int64, threads int) {
 			recs[at[b]] = rec{k, e}
 			at[b]++
 		})
+		var scratch []rec
 		for b := 0; b+1 < len(start); b++ {
 			if bucket := recs[start[b]:start[b+1]]; len(bucket) > 1 {
-				sortRecs(bucket)
+				scratch = sortRecs(bucket, shift, scratch)
 			}
 		}
 		for i := 0; i < len(recs); {
@@ -231,13 +232,44 @@ type rec struct {
 	e int32
 }
 
-// sortRecs sorts a bucket of records by sort key: by insertion for the
-// few records of a typical bucket, else by slices.SortFunc.
-func sortRecs(r []rec) {
-	if len(r) > 16 {
+// sortRecs sorts a bucket of records, whose sort keys agree above bit
+// shift, by sort key: a counting sort on the next 8 bits (through
+// scratch, which it returns for reuse) and then insertion sorts of the
+// few records left with equal bits.
+func sortRecs(r []rec, shift uint, scratch []rec) []rec {
+	switch {
+	case len(r) <= 16:
+		insertionSortRecs(r)
+		return scratch
+	case shift < 8:
 		slices.SortFunc(r, func(a, b rec) int { return cmp.Compare(a.k, b.k) })
-		return
+		return scratch
 	}
+	shift -= 8
+	var start [257]int32 // sub-bucket bounds
+	for _, x := range r {
+		start[(x.k>>shift)&255+1]++
+	}
+	for d := 1; d < len(start); d++ {
+		start[d] += start[d-1]
+	}
+	scratch = slices.Grow(scratch[:0], len(r))[:len(r)]
+	at := start
+	for _, x := range r {
+		d := (x.k >> shift) & 255
+		scratch[at[d]] = x
+		at[d]++
+	}
+	copy(r, scratch)
+	for d := 0; d < 256; d++ {
+		if sub := r[start[d]:start[d+1]]; len(sub) > 1 {
+			scratch = sortRecs(sub, shift, scratch) // r is back from scratch: reuse it
+		}
+	}
+	return scratch
+}
+
+func insertionSortRecs(r []rec) {
 	for i := 1; i < len(r); i++ {
 		for j := i; j > 0 && r[j].k < r[j-1].k; j-- {
 			r[j], r[j-1] = r[j-1], r[j]
