@@ -366,25 +366,14 @@ func countsTie(flags uint16, rev, mrev bool) bool {
 func UMICode(umi []byte) uint64 {
 	var c, n uint64
 	for _, b := range umi {
-		var v uint64
-		switch b {
-		case 'A', 'a':
-			v = 0
-		case 'C', 'c':
-			v = 1
-		case 'G', 'g':
-			v = 2
-		case 'T', 't':
-			v = 3
-		case '-', '+':
+		v := umiBase[b] // a table, not a switch: bases are random, branches mispredict
+		if v == umiSkip {
 			continue
-		default:
+		}
+		if v == umiBad || n == 28 {
 			return 0
 		}
-		if n == 28 {
-			return 0
-		}
-		c = c<<2 | v
+		c = c<<2 | uint64(v)
 		n++
 	}
 	if n == 0 {
@@ -392,6 +381,24 @@ func UMICode(umi []byte) uint64 {
 	}
 	return c | n<<56
 }
+
+// umiBase maps a UMI byte to its two-bit base, umiSkip ('-', '+') or
+// umiBad (any other byte).
+var umiBase = func() (t [256]uint8) {
+	for i := range t {
+		t[i] = umiBad
+	}
+	for i, b := range "ACGT" {
+		t[b], t[b+'a'-'A'] = uint8(i), uint8(i)
+	}
+	t['-'], t['+'] = umiSkip, umiSkip
+	return t
+}()
+
+const (
+	umiSkip = 4
+	umiBad  = 5
+)
 
 // UMIDistance1 reports whether two UMICodes differ at exactly one base
 // (Hamming distance 1; UMIs of different lengths are never neighbours).
