@@ -155,13 +155,13 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 		}
 	}
 	f := Fragment{Library: lib}
-	if k.Opt.OpticalNames {
-		f.Spot = ParseSpot(rec.Name)
-	}
+	// The spot is parsed only for a record that is counted (k.spot, after
+	// the mate decision): half the records of pairs are not.
 	paired := rec.Flags&FlagPaired != 0 && rec.Flags&FlagMateUnmapped == 0 && rec.MateRef >= 0 && rec.MatePos >= 0
 	if !paired {
 		h := k.cell(mix(mix(mix(mix(seed1, uint64(lib)), uint64(rec.Ref)), uint64(end)), strand(rev)), rec.Tag)
 		k.group(&f, h, k.umi(rec.Tag, rec.Name))
+		f.Spot = k.spot(rec.Name)
 		f.LowRef, f.LowPos = rec.Ref, end
 		return f, true
 	}
@@ -198,8 +198,17 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 	h = mix(mix(mix(h, uint64(a.pos)), strand(a.rev)), uint64(b.ref))
 	h = k.cell(mix(mix(h, uint64(b.pos)), strand(b.rev)), rec.Tag)
 	k.group(&f, h, k.umi(rec.Tag, rec.Name))
+	f.Spot = k.spot(rec.Name)
 	f.LowRef, f.LowPos = a.ref, a.pos
 	return f, true
+}
+
+// spot returns the flow-cell spot in a read name when OpticalNames is set.
+func (k *Keyer) spot(name []byte) Spot {
+	if !k.Opt.OpticalNames {
+		return 0
+	}
+	return ParseSpot(name)
 }
 
 // cell mixes the cell barcode into h when CellTag is set.
