@@ -98,12 +98,9 @@ func collapseKeys(ms []umiMol, l *libAcc, dist int64, threads int) {
 	if len(ms) == 0 {
 		return
 	}
-	slices.SortFunc(ms, func(a, b umiMol) int {
-		if c := cmp.Compare(a.group, b.group); c != 0 {
-			return c
-		}
-		return byAbundance(a, b)
-	})
+	// The passes find edges between keys in the order given; meanwhile
+	// this goroutine sorts the keys for directional (by class, then
+	// abundance), and the edges are renumbered into that order below.
 	// Entry e < len(ms) is key e as it is, entry len(ms)+e key e with its
 	// mates exchanged (pairs only).
 	n := int32(len(ms))
@@ -132,7 +129,7 @@ func collapseKeys(ms []umiMol, l *libAcc, dist int64, threads int) {
 	}
 	// 2^11 buckets: their write positions stay in cache during the scatter.
 	shift := 64 - uint(min(11, max(1, bits.Len(uint(entries))-4)))
-	pass := func(x, y int) (edges []uint64) {
+	pass := func(x, y int, recs []rec) (edges []uint64) {
 		each := func(f func(k uint64, e int32)) {
 			qx, qy := uint(x), uint(y)
 			for i := range ms {
@@ -148,7 +145,8 @@ func collapseKeys(ms []umiMol, l *libAcc, dist int64, threads int) {
 		for b := 1; b < len(start); b++ {
 			start[b] += start[b-1]
 		}
-		recs := make([]rec, entries)
+		// recs (entries long, one per worker, reused by its passes) is
+		// overwritten whole by the scatter.
 		at := slices.Clone(start[:len(start)-1])
 		each(func(k uint64, e int32) {
 			b := k >> shift
@@ -192,21 +190,31 @@ func collapseKeys(ms []umiMol, l *libAcc, dist int64, threads int) {
 		next <- k
 	}
 	close(next)
-	for w := 0; w < max(1, min(threads, len(pairs))); w++ {
+	workers := max(1, min(threads, len(pairs)))
+	for w := 0; w < workers; w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			recs := make([]rec, entries)
 			for k := range next {
-				found[k] = pass(pairs[k][0], pairs[k][1])
+				found[k] = pass(pairs[k][0], pairs[k][1], recs)
 			}
 		}()
 	}
-	wg.Wait()
-	var edges []uint64 // both directions, as edge(a, b)
-	for _, f := range found {
-		edges = append(edges, f...)
+	if threads <= 1 {
+		wg.Wait() // one worker at a time
 	}
-	found = [6][]uint64{}
+	order := sortOrder(ms)
+	wg.Wait()
+	rank := permute(ms, order)
+	order = nil
+	var edges []uint64 // both directions, as edge(a, b) in sorted order
+	for _, f := range found {
+		for _, e := range f {
+			edges = append(edges, edge(rank[e>>32], rank[uint32(e)]))
+		}
+	}
+	found, rank = [6][]uint64{}, nil
 	// Adjacency lists (compressed rows; a pair found by several quarter
 	// pairs is listed several times, which the directional pass ignores).
 	slices.Sort(edges)
@@ -224,6 +232,70 @@ func collapseKeys(ms []umiMol, l *libAcc, dist int64, threads int) {
 	}, func(n int64, spots []reads.Spot) {
 		l.count(n, spots, dist)
 	})
+}
+
+// sortKey is the part of a key that orders it for directional.
+type sortKey struct {
+	group, umi, seqB uint64
+	n                int64
+	i                int32
+}
+
+// sortOrder returns the order of ms by class, then byAbundance: the old
+// index of each key in sorted order. It sorts compact copies of the
+// fields compared, so the comparisons, and so the order (ties included),
+// are those of sorting ms itself; ms is only read.
+func sortOrder(ms []umiMol) []int32 {
+	ord := make([]sortKey, len(ms))
+	for i := range ms {
+		m := &ms[i]
+		ord[i] = sortKey{m.group, m.umi, m.seqB, m.n, int32(i)}
+	}
+	slices.SortFunc(ord, func(a, b sortKey) int {
+		if c := cmp.Compare(a.group, b.group); c != 0 {
+			return c
+		}
+		if c := cmp.Compare(b.n, a.n); c != 0 { // as byAbundance
+			return c
+		}
+		if c := cmp.Compare(a.umi, b.umi); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.seqB, b.seqB)
+	})
+	order := make([]int32, len(ms))
+	for i, o := range ord {
+		order[i] = o.i
+	}
+	return order
+}
+
+// permute moves ms into the given order (order[i] is the old index of the
+// key that goes to i), following its cycles in place, and returns each
+// old index's new position.
+func permute(ms []umiMol, order []int32) (rank []int32) {
+	rank = make([]int32, len(ms))
+	for i, o := range order {
+		rank[o] = int32(i)
+	}
+	for i := range order {
+		if order[i] < 0 || order[i] == int32(i) {
+			continue
+		}
+		tmp := ms[i]
+		j := int32(i)
+		for {
+			k := order[j]
+			order[j] = -1
+			if k == int32(i) {
+				ms[j] = tmp
+				break
+			}
+			ms[j] = ms[k]
+			j = k
+		}
+	}
+	return rank
 }
 
 // rec is one entry of a quarter-pair pass: its sort key and entry.
