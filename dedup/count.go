@@ -1,6 +1,7 @@
 package dedup
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"io"
@@ -423,6 +424,8 @@ func (r *run) readGroups(s *source, h *reads.Header) func(rg []byte) int {
 	}
 	rgLib := map[string]int{}
 	noRG := -1
+	var lastRG []byte // records come in runs of one read group: skip the map
+	lastLib := -1
 	return func(rg []byte) int {
 		if rg == nil || r.opt.By == ByFile {
 			if noRG < 0 {
@@ -430,7 +433,11 @@ func (r *run) readGroups(s *source, h *reads.Header) func(rg []byte) int {
 			}
 			return noRG
 		}
+		if lastLib >= 0 && bytes.Equal(rg, lastRG) {
+			return lastLib
+		}
 		if i, ok := rgLib[string(rg)]; ok {
+			lastRG, lastLib = append(lastRG[:0], rg...), i
 			return i
 		}
 		id := string(rg)
@@ -441,6 +448,7 @@ func (r *run) readGroups(s *source, h *reads.Header) func(rg []byte) int {
 		}
 		i := r.library(n)
 		rgLib[id] = i
+		lastRG, lastLib = append(lastRG[:0], rg...), i
 		if !known {
 			r.libNote(i, "read group %q is used by records but not declared in the header of %s", id, s.Name)
 		}

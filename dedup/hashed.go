@@ -28,7 +28,7 @@ type Hashed struct {
 // over. When read names carry flow-cell spots, spot holds each molecule's
 // first spot and more the spots of its later reads, as (key, spot) pairs
 // in arrival order in fixed-size chunks (16 bytes a duplicate read, no
-// allocation per molecule; Results sorts them by key), so memory for
+// allocation per molecule; Results sorts them by key and spot), so memory for
 // spots grows with duplicates, not with molecules.
 type table struct {
 	segs  [segments]segment
@@ -352,8 +352,8 @@ func appendChunked(chunks [][]keySpot, ks keySpot) [][]keySpot {
 	return chunks
 }
 
-// sortedMore returns t.more as one slice sorted by key (spots of one key
-// in arrival order), releasing the chunks as it copies them, and keeps it
+// sortedMore returns t.more as one slice sorted by key and spot (the
+// order clusters ignores), releasing the chunks as it copies them, and keeps it
 // as t.more's only chunk.
 func (t *table) sortedMore() []keySpot {
 	n := 0
@@ -365,7 +365,14 @@ func (t *table) sortedMore() []keySpot {
 		all = append(all, c...)
 		t.more[i] = nil
 	}
-	slices.SortStableFunc(all, func(a, b keySpot) int { return cmp.Compare(a.key, b.key) })
+	// By key, then spot: a molecule's spots only feed clusters, whose
+	// count does not depend on their order.
+	slices.SortFunc(all, func(a, b keySpot) int {
+		if c := cmp.Compare(a.key, b.key); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.spot, b.spot)
+	})
 	t.more = [][]keySpot{all} // one sorted chunk: Results may be called again
 	return all
 }
@@ -410,9 +417,11 @@ func (h *Hashed) Results(n int) []Result {
 					if sg.spot[i] != 0 {
 						spots = append(spots, sg.spot[i])
 					}
-					j := sort.Search(len(more), func(j int) bool { return more[j].key >= k })
-					for ; j < len(more) && more[j].key == k; j++ {
-						spots = append(spots, more[j].spot)
+					if c > 1 && len(more) > 0 { // a molecule of one read has no later spots
+						j := sort.Search(len(more), func(j int) bool { return more[j].key >= k })
+						for ; j < len(more) && more[j].key == k; j++ {
+							spots = append(spots, more[j].spot)
+						}
 					}
 				}
 				if sg.cls != nil && sg.sa[i] != 0 {

@@ -155,13 +155,13 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 		}
 	}
 	f := Fragment{Library: lib}
-	if k.Opt.OpticalNames {
-		f.Spot = ParseSpot(rec.Name)
-	}
+	// The spot is parsed only for a record that is counted (k.spot, after
+	// the mate decision): half the records of pairs are not.
 	paired := rec.Flags&FlagPaired != 0 && rec.Flags&FlagMateUnmapped == 0 && rec.MateRef >= 0 && rec.MatePos >= 0
 	if !paired {
 		h := k.cell(mix(mix(mix(mix(seed1, uint64(lib)), uint64(rec.Ref)), uint64(end)), strand(rev)), rec.Tag)
 		k.group(&f, h, k.umi(rec.Tag, rec.Name))
+		f.Spot = k.spot(rec.Name)
 		f.LowRef, f.LowPos = rec.Ref, end
 		return f, true
 	}
@@ -198,8 +198,17 @@ func (k *Keyer) Alignment(rec *Record, lib int) (Fragment, bool) {
 	h = mix(mix(mix(h, uint64(a.pos)), strand(a.rev)), uint64(b.ref))
 	h = k.cell(mix(mix(h, uint64(b.pos)), strand(b.rev)), rec.Tag)
 	k.group(&f, h, k.umi(rec.Tag, rec.Name))
+	f.Spot = k.spot(rec.Name)
 	f.LowRef, f.LowPos = a.ref, a.pos
 	return f, true
+}
+
+// spot returns the flow-cell spot in a read name when OpticalNames is set.
+func (k *Keyer) spot(name []byte) Spot {
+	if !k.Opt.OpticalNames {
+		return 0
+	}
+	return ParseSpot(name)
 }
 
 // cell mixes the cell barcode into h when CellTag is set.
@@ -366,25 +375,14 @@ func countsTie(flags uint16, rev, mrev bool) bool {
 func UMICode(umi []byte) uint64 {
 	var c, n uint64
 	for _, b := range umi {
-		var v uint64
-		switch b {
-		case 'A', 'a':
-			v = 0
-		case 'C', 'c':
-			v = 1
-		case 'G', 'g':
-			v = 2
-		case 'T', 't':
-			v = 3
-		case '-', '+':
+		v := umiBase[b] // a table, not a switch: bases are random, branches mispredict
+		if v == umiSkip {
 			continue
-		default:
+		}
+		if v == umiBad || n == 28 {
 			return 0
 		}
-		if n == 28 {
-			return 0
-		}
-		c = c<<2 | v
+		c = c<<2 | uint64(v)
 		n++
 	}
 	if n == 0 {
@@ -392,6 +390,24 @@ func UMICode(umi []byte) uint64 {
 	}
 	return c | n<<56
 }
+
+// umiBase maps a UMI byte to its two-bit base, umiSkip ('-', '+') or
+// umiBad (any other byte).
+var umiBase = func() (t [256]uint8) {
+	for i := range t {
+		t[i] = umiBad
+	}
+	for i, b := range "ACGT" {
+		t[b], t[b+'a'-'A'] = uint8(i), uint8(i)
+	}
+	t['-'], t['+'] = umiSkip, umiSkip
+	return t
+}()
+
+const (
+	umiSkip = 4
+	umiBad  = 5
+)
 
 // UMIDistance1 reports whether two UMICodes differ at exactly one base
 // (Hamming distance 1; UMIs of different lengths are never neighbours).

@@ -110,12 +110,19 @@ func Open(r io.Reader, threads int) (*Input, error) {
 		if len(head) >= 16 && head[3]&4 != 0 && head[12] == 'B' && head[13] == 'C' {
 			in.Compression = BGZF
 			in.tail = &tailReader{r: raw}
-			// threads goroutines inflate blocks, with twice as many
-			// blocks in flight so the parser rarely waits (bgzf.go); at
+			// 2 × threads goroutines inflate blocks (one, in Read, for
+			// threads = 1), with twice as many blocks in flight so the
+			// parser rarely waits (bgzf.go). More inflaters than cores
+			// keep the cores busy while the parser takes one: on 2 cores
+			// the sorted bench BAM took 1.30 s with 4 inflaters against
+			// 1.42 s with 2, the same CPU (BENCHMARKS.md section 2). At
 			// most maxBlockReaders, each holding an inflater and two
-			// 64 KiB buffers per block in flight: more gain nothing on
-			// any machine this runs on.
-			in.bg = newBGZFReader(in.tail, min(threads, maxBlockReaders))
+			// 64 KiB buffers per block in flight.
+			workers := threads
+			if threads > 1 {
+				workers = 2 * threads
+			}
+			in.bg = newBGZFReader(in.tail, min(workers, maxBlockReaders))
 			dec = in.bg
 		} else {
 			in.Compression = Gzip

@@ -2,6 +2,7 @@ package reads
 
 import (
 	"errors"
+	"strings"
 	"testing"
 )
 
@@ -224,5 +225,30 @@ func TestReadNameConventions(t *testing.T) {
 		if got, _, _ := Patterned([]byte(c.name)); got != c.want {
 			t.Errorf("Patterned(%q) = %v, want %v", c.name, got, c.want)
 		}
+	}
+}
+
+// TestUMICodeBytes: every byte value packs as UMICode's comment says:
+// A, C, G, T in either case as 0-3, '-' and '+' skipped, anything else
+// making the UMI unpackable; 28 bases at most.
+func TestUMICodeBytes(t *testing.T) {
+	for b := 0; b < 256; b++ {
+		want := uint64(0)
+		switch byte(b) {
+		case 'A', 'a', 'C', 'c', 'G', 'g', 'T', 't':
+			v := uint64(strings.IndexByte("ACGT", byte(b)&^0x20))
+			want = 1<<2 | v | 2<<56
+		case '-', '+':
+			want = 1 | 1<<56
+		}
+		if got := UMICode([]byte{'C', byte(b)}); got != want {
+			t.Errorf("UMICode(C%q) = %x, want %x", byte(b), got, want)
+		}
+	}
+	if got := UMICode([]byte(strings.Repeat("T", 28))); got != 1<<56-1|28<<56 {
+		t.Errorf("28 bases: %x", got)
+	}
+	if got := UMICode([]byte(strings.Repeat("T", 29))); got != 0 {
+		t.Errorf("29 bases: %x, want 0", got)
 	}
 }
