@@ -50,9 +50,7 @@ func fitSameFamily(m Model, c Counts, maxT, shift float64) (Model, error) {
 	name := m.Name()
 	for _, cd := range candidates {
 		if cd.name == name {
-			hs := newHist(c, censorJ)
-			hs.free, hs.tight = cd.free, true
-			fm, _, err := cd.fit(hs, shiftedParams(m, shift))
+			fm, err := fitCandidate(cd, c, shiftedParams(m, shift), true)
 			if err == nil && !isAdmissible(fm, c, maxT) {
 				err = errNoAdmissible
 			}

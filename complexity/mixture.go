@@ -101,8 +101,8 @@ type kernel struct {
 	rows15 []float64
 	// pin[k] = P(1 ≤ X ≤ J | λ_k), summed directly (what a free head
 	// conditions on); freeHi is one past the last grid point where it is
-	// at least freeNegligible. rowsFree15, for J = 15: per grid point
-	// P(1..15 | λ_k) and pin[k], contiguous (stride rowFree15).
+	// at least freeNegligible. rowsFree15, for J = 15: rows15 with
+	// pin[k] in place of the tail (same stride, row15).
 	pin        []float64
 	freeHi     int
 	rowsFree15 []float64
@@ -119,9 +119,6 @@ type kernel struct {
 // the cutoff cell's P(1 | λ) ≥ 3e−7 (λ at gridLo): 1e−21 relative, five
 // orders below float64 rounding.
 const freeNegligible = 1e-40
-
-// rowFree15 is the stride of kernel.rowsFree15.
-const rowFree15 = 16
 
 var (
 	kernelMu    sync.Mutex
@@ -167,10 +164,10 @@ func gridKernel(J int) *kernel {
 			k.rows15 = append(k.rows15, k.p[i][1:]...)
 			k.rows15 = append(k.rows15, k.tail[i], k.seen[i])
 		}
-		k.rowsFree15 = make([]float64, 0, n*rowFree15)
+		k.rowsFree15 = make([]float64, 0, n*row15)
 		for i := 0; i < n; i++ {
 			k.rowsFree15 = append(k.rowsFree15, k.p[i][1:]...)
-			k.rowsFree15 = append(k.rowsFree15, k.pin[i])
+			k.rowsFree15 = append(k.rowsFree15, k.pin[i], k.seen[i])
 		}
 	}
 	kernelCache[J] = k
@@ -197,31 +194,23 @@ const row15 = 17
 // censoring point in use (J = 15, censorJ) mixSums15 does them with the
 // accumulators in registers, same operations in the same order.
 func mixLogLik(k *kernel, hs *hist, g []float64, lo, hi int, buf []float64) float64 {
+	pj := buf[:hs.J+1]
 	if hs.free {
-		return mixLogLikFree(k, hs, g, lo, hi, buf)
-	}
-	J := hs.J
-	pj := buf[:J+1]
-	var pt, ps float64
-	if J == 15 && k.rows15 != nil {
-		pt, ps = mixSums15(k.rows15, g[:hi-lo], lo, pj)
-	} else {
-		for j := range pj {
-			pj[j] = 0
+		// Only the points below freeHi, and P(1 ≤ X ≤ J) summed directly
+		// (kernel.pin) rather than as P(X ≥ 1) − P(X > J), which would
+		// cancel where much weight lies above J.
+		hi = min(hi, k.freeHi)
+		if lo >= hi {
+			return math.Inf(-1)
 		}
-		for i := lo; i < hi; i++ {
-			w := g[i-lo]
-			if w == 0 {
-				continue
-			}
-			row := k.p[i]
-			for j := 1; j <= J; j++ {
-				pj[j] += w * row[j]
-			}
-			pt += w * k.tail[i]
-			ps += w * k.seen[i]
+		pin, _ := gridSums(k, k.rowsFree15, k.pin, g, lo, hi, pj)
+		ll, ok := classLogLik(hs, pj)
+		if !ok || !(pin > 0) {
+			return math.Inf(-1)
 		}
+		return ll - (hs.d-hs.tail)*math.Log(pin)
 	}
+	pt, ps := gridSums(k, k.rows15, k.tail, g, lo, hi, pj)
 	ll, ok := classLogLik(hs, pj)
 	if !ok || !(ps > 0) {
 		return math.Inf(-1)
@@ -235,41 +224,30 @@ func mixLogLik(k *kernel, hs *hist, g []float64, lo, hi int, buf []float64) floa
 	return ll - hs.d*math.Log(ps)
 }
 
-// mixLogLikFree is mixLogLik with a free head: the sums run over grid
-// points below kernel.freeHi only, and P(1 ≤ X ≤ J) is summed directly
-// (kernel.pin) rather than as P(X ≥ 1) − P(X > J), which would cancel
-// where much weight lies above J.
-func mixLogLikFree(k *kernel, hs *hist, g []float64, lo, hi int, buf []float64) float64 {
-	J := hs.J
-	pj := buf[:J+1]
-	hi = min(hi, k.freeHi)
-	if lo >= hi {
-		return math.Inf(-1)
+// gridSums sets pj[j] = Σ_i g_i P(j | λ_i), j = 1..J, over grid points
+// lo..hi-1 and returns Σ_i g_i x_i and Σ_i g_i (1 − e^{−λ_i}); rows are
+// the kernel's contiguous J = 15 rows holding x in column 15 (mixSums15),
+// used when J = 15.
+func gridSums(k *kernel, rows, x, g []float64, lo, hi int, pj []float64) (sx, ps float64) {
+	if k.J == 15 && rows != nil {
+		return mixSums15(rows, g[:hi-lo], lo, pj)
 	}
-	var pin float64
-	if J == 15 && k.rowsFree15 != nil {
-		pin = mixSumsFree15(k.rowsFree15, g[:hi-lo], lo, pj)
-	} else {
-		for j := range pj {
-			pj[j] = 0
+	for j := range pj {
+		pj[j] = 0
+	}
+	for i := lo; i < hi; i++ {
+		w := g[i-lo]
+		if w == 0 {
+			continue
 		}
-		for i := lo; i < hi; i++ {
-			w := g[i-lo]
-			if w == 0 {
-				continue
-			}
-			row := k.p[i]
-			for j := 1; j <= J; j++ {
-				pj[j] += w * row[j]
-			}
-			pin += w * k.pin[i]
+		row := k.p[i]
+		for j := 1; j <= k.J; j++ {
+			pj[j] += w * row[j]
 		}
+		sx += w * x[i]
+		ps += w * k.seen[i]
 	}
-	ll, ok := classLogLik(hs, pj)
-	if !ok || !(pin > 0) {
-		return math.Inf(-1)
-	}
-	return ll - (hs.d-hs.tail)*math.Log(pin)
+	return sx, ps
 }
 
 // classLogLik is Σ_{j≤J} h_j log pj[j]; false when a class with units
@@ -287,45 +265,11 @@ func classLogLik(hs *hist, pj []float64) (float64, bool) {
 	return ll, true
 }
 
-// mixSumsFree15 sets pj[j] = Σ_i g_i P(j | λ_{lo+i}), j = 1..15, and
-// returns Σ_i g_i P(1 ≤ X ≤ 15 | λ), over the rows of kernel.rowsFree15
-// from lo, with the accumulators in registers (two passes of eight).
-func mixSumsFree15(rows, g []float64, lo int, pj []float64) (pin float64) {
-	rows = rows[lo*rowFree15:]
-	var p1, p2, p3, p4, p5, p6, p7, p8 float64
-	for i, w := range g {
-		r := (*[rowFree15]float64)(rows[i*rowFree15:])
-		p1 += w * r[0]
-		p2 += w * r[1]
-		p3 += w * r[2]
-		p4 += w * r[3]
-		p5 += w * r[4]
-		p6 += w * r[5]
-		p7 += w * r[6]
-		p8 += w * r[7]
-	}
-	var p9, p10, p11, p12, p13, p14, p15 float64
-	for i, w := range g {
-		r := (*[rowFree15]float64)(rows[i*rowFree15:])
-		p9 += w * r[8]
-		p10 += w * r[9]
-		p11 += w * r[10]
-		p12 += w * r[11]
-		p13 += w * r[12]
-		p14 += w * r[13]
-		p15 += w * r[14]
-		pin += w * r[15]
-	}
-	pj = pj[:16]
-	pj[0], pj[1], pj[2], pj[3], pj[4], pj[5], pj[6], pj[7] = 0, p1, p2, p3, p4, p5, p6, p7
-	pj[8], pj[9], pj[10], pj[11], pj[12], pj[13], pj[14], pj[15] = p8, p9, p10, p11, p12, p13, p14, p15
-	return pin
-}
-
 // mixSums15 sets pj[j] = Σ_i g_i P(j | λ_{lo+i}), j = 1..15, and returns
-// Σ_i g_i P(X > 15 | λ) and Σ_i g_i (1 − e^{−λ}), over the rows of
-// kernel.rows15 from lo. Each sum runs over i in ascending order, as in
-// the general loop of mixLogLik (a zero weight adds an exact zero), so the
+// the weighted sums of the rows' columns 15 (P(X > 15 | λ) in
+// kernel.rows15, P(1 ≤ X ≤ 15 | λ) in kernel.rowsFree15) and 16
+// (1 − e^{−λ}), over the rows from lo. Each sum runs over i in ascending order, as in
+// the general loop of gridSums (a zero weight adds an exact zero), so the
 // results are the same bits; two passes of eight and nine accumulators fit
 // the registers.
 func mixSums15(rows, g []float64, lo int, pj []float64) (pt, ps float64) {
@@ -383,7 +327,7 @@ func newGridModel(name string, hs *hist, k *kernel, lo, hi int, g []float64, par
 	m := &gridModel{name: name, n: hs.n, d: hs.d, params: params}
 	var ps, pt, pin float64
 	if hs.free {
-		hi = min(hi, k.freeHi) // as mixLogLikFree
+		hi = min(hi, k.freeHi) // as mixLogLik with a free head
 	}
 	for i := lo; i < hi; i++ {
 		if g[i-lo] > 0 {
@@ -590,7 +534,7 @@ func (f *paretoFit) weights(p []float64) (lo, hi int, ok bool) {
 		hi = n
 	}
 	if f.hs.free {
-		hi = min(hi, f.k.freeHi) // the rest is not summed (mixLogLikFree)
+		hi = min(hi, f.k.freeHi) // the rest is not summed (mixLogLik)
 	}
 	if lo >= hi {
 		return 0, 0, false

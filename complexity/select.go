@@ -411,10 +411,16 @@ func refitCandidate(method string, c Counts, name string, p []float64) (Model, e
 		if cd.name != name {
 			continue
 		}
-		hs := newHist(c, censorJ)
-		hs.free = cd.free
-		m, _, err := cd.fit(hs, p)
-		return m, err
+		return fitCandidate(cd, c, p, false)
 	}
 	return nil, errors.New("complexity: cannot refit " + method)
+}
+
+// fitCandidate fits candidate cd to c, warm-started at p (nil: from
+// scratch); tight sets hist.tight.
+func fitCandidate(cd candidate, c Counts, p []float64, tight bool) (Model, error) {
+	hs := newHist(c, censorJ)
+	hs.free, hs.tight = cd.free, tight
+	m, _, err := cd.fit(hs, p)
+	return m, err
 }
