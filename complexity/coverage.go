@@ -132,17 +132,38 @@ func coverageRarefied(c Counts, t float64) float64 {
 	n := float64(c.Reads())
 	lmiss := math.Log1p(-t / (n - 1))
 	var s, comp float64
+	var run runningAbsent
 	for _, cl := range c.classes {
 		j := float64(cl.Times)
 		var v float64
 		if (j-1)*lmiss < coverageSureLog {
 			v = j * float64(cl.Units) / n // × −Expm1(…) = 1
 		} else {
-			v = j * float64(cl.Units) / n * -math.Expm1(hgLogAbsent(n-1, j-1, t))
+			v = j * float64(cl.Units) / n * -math.Expm1(run.logAbsent(n-1, j-1, t))
 		}
 		s, comp = neumaierAdd(s, comp, v)
 	}
 	return s + comp
+}
+
+// runningAbsent is hgLogAbsent(N, k, t) for one N and t and k ascending
+// over calls, bit for bit: where hgLogAbsent sums the k factors
+// log1p(−t/(N−i)), i = 0…k−1, directly (k ≤ hgDirect), the sum so far is
+// kept and extended by the new factors, in the same order from the same
+// zero, so each class costs its own new factors instead of all k of them.
+type runningAbsent struct {
+	sum   float64
+	terms float64 // factors in sum
+}
+
+func (r *runningAbsent) logAbsent(N, k, t float64) float64 {
+	if t <= 0 || k <= 0 || t >= N-k+1 || k > hgDirect {
+		return hgLogAbsent(N, k, t)
+	}
+	for ; r.terms < k; r.terms++ {
+		r.sum += math.Log1p(-t / (N - r.terms))
+	}
+	return r.sum
 }
 
 // coverageSureLog is the log miss-probability bound below which

@@ -99,8 +99,15 @@ const searchIter = 200
 
 // solveIncreasing finds the smallest T in [lo, hi] with f(T) >= target for
 // a non-decreasing f, by bisection to one read (rounded up to whole
-// reads); NaN when f(hi) < target.
+// reads); NaN when f(hi) < target. See solveNear.
 func solveIncreasing(f func(float64) float64, target, lo, hi float64) float64 {
+	return solveNear(f, target, lo, hi, hi, f(hi))
+}
+
+// bisectIncreasing is plain bisection, solveIncreasing's definition: halve
+// [lo, hi], keep the half whose ends straddle the target, stop below half
+// a read, answer the upper end rounded up.
+func bisectIncreasing(f func(float64) float64, target, lo, hi float64) float64 {
 	if !(f(hi) >= target) {
 		return math.NaN()
 	}
@@ -117,6 +124,295 @@ func solveIncreasing(f func(float64) float64, target, lo, hi float64) float64 {
 	}
 	return math.Ceil(hi)
 }
+
+// solveNear is solveIncreasing given one value already known, f0 = f(x0)
+// at x0 in [lo, hi] (a guess at the answer, or an end), and gives
+// bisectIncreasing's answer for a non-decreasing f with far fewer
+// evaluations. The curves here cost a bootstrap's worth of replicates per
+// evaluation (reach intervals), and bisection to one read over a 100-fold
+// range takes 25 to 30 of them. Instead:
+//
+//  1. bracket: from x0, steps growing geometrically in u = log(1+T) go
+//     towards the target until a value on its other side (or the end of
+//     the range) is met, so a root a < root ≤ b with f(a) < target ≤
+//     f(b) is known; an end is evaluated only when the steps reach it;
+//  2. narrow that bracket to half a read by Brent's method (narrowRoot);
+//  3. replay bisection's halvings of [lo, hi], evaluating f only at
+//     midpoints strictly inside (a, b): for a non-decreasing f, every
+//     midpoint at or below a is below the target and every one at or
+//     above b reaches it, so each halving goes the way bisection's would
+//     and the answer is the same to the bit.
+//
+// A NaN counts as below the target, as in bisection.
+func solveNear(f func(float64) float64, target, lo, hi, x0, f0 float64) float64 {
+	if hi-lo <= 0.5 || !(x0 >= lo && x0 <= hi) {
+		return bisectIncreasing(f, target, lo, hi)
+	}
+	a, fa, b, fb := lo, math.NaN(), hi, math.NaN()
+	if f0 >= target {
+		b, fb = x0, f0
+		if x0 == lo {
+			return lo
+		}
+		for du, u := bracketStep, math.Log1p(x0); ; du *= 2 {
+			x := math.Expm1(u - du)
+			if !(x > lo) {
+				if fl := f(lo); fl >= target {
+					return lo
+				} else {
+					fa = fl
+				}
+				break
+			}
+			if fx := f(x); fx >= target {
+				b, fb = x, fx
+			} else {
+				a, fa = x, fx
+				break
+			}
+		}
+	} else {
+		a, fa = x0, f0
+		if x0 == hi {
+			return math.NaN()
+		}
+		for du, u := bracketStep, math.Log1p(x0); ; du *= 2 {
+			x := math.Expm1(u + du)
+			if !(x < hi) {
+				fh := f(hi)
+				if !(fh >= target) {
+					return math.NaN()
+				}
+				fb = fh
+				break
+			}
+			if fx := f(x); fx >= target {
+				b, fb = x, fx
+				break
+			} else {
+				a, fa = x, fx
+			}
+		}
+	}
+	a, b = narrowRoot(f, target, a, fa, b, fb)
+	return replayBisection(f, target, lo, hi, a, b)
+}
+
+// replayBisection is bisectIncreasing's halvings of [lo, hi] given a
+// bracket a ≤ root ≤ b of the answer: a midpoint at or below a counts as
+// short of the target and one at or above b as reaching it, unevaluated,
+// so f is evaluated only at the midpoints strictly inside (a, b).
+func replayBisection(f func(float64) float64, target, lo, hi, a, b float64) float64 {
+	for i := 0; i < searchIter && hi-lo > 0.5; i++ {
+		mid := lo + (hi-lo)/2
+		var reached bool
+		switch {
+		case mid <= a:
+		case mid >= b:
+			reached = true
+		default:
+			reached = f(mid) >= target
+			if reached {
+				b = mid
+			} else {
+				a = mid
+			}
+		}
+		if reached {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	return math.Ceil(hi)
+}
+
+// solveFirst finds the first depth at or after start, in [lo, hi], at
+// which f reaches the target, for an f that need not be monotone: an end
+// of an interval band, where the replicates' spread can grow faster than
+// the curve and turn the band back (a yield's upper end rising again far
+// out, a distinct lower end falling). The quantity the band bounds is
+// monotone in depth (distinct units never fall, the marginal yield never
+// rises), so once the band has reached the target at T it holds there for
+// every later depth too: the valid and tightest answer is the first
+// crossing, not whichever one bisection happens to land on. Found by
+// steps of scanStep in u = log(1+T) from start (a crossing that is
+// undone within one step can be missed: the answer is the first
+// crossing on that grid), then narrowRoot and replayBisection inside the
+// step that crosses, so for a non-decreasing f with start at or below its
+// root the answer is bisectIncreasing's to the bit. A start at which f
+// already reaches the target is the answer (rounded up to whole reads);
+// NaN when f stays short up to hi.
+func solveFirst(f func(float64) float64, target, lo, hi, start float64) float64 {
+	if hi-lo <= 0.5 {
+		return bisectIncreasing(f, target, lo, hi)
+	}
+	if !(start > lo) {
+		start = lo
+	}
+	if start >= hi {
+		if f(hi) >= target {
+			return math.Ceil(hi)
+		}
+		return math.NaN()
+	}
+	x, fx := start, f(start)
+	if fx >= target {
+		return replayBisection(f, target, lo, hi, x, x)
+	}
+	for u := math.Log1p(x); ; {
+		u += scanStep
+		y := math.Expm1(u)
+		if !(y < hi) {
+			y = hi
+		}
+		fy := f(y)
+		if fy >= target {
+			a, b := narrowRoot(f, target, x, fx, y, fy)
+			return replayBisection(f, target, lo, hi, a, b)
+		}
+		if y == hi {
+			return math.NaN()
+		}
+		x, fx = y, fy
+	}
+}
+
+// scanStep is solveFirst's step, in u = log(1+T): 5% of the depth, finer
+// than the spacing of the depths a reach interval is read at and a tenth
+// of the distance of a typical interval end from the point answer.
+const scanStep = 0.05
+
+// solveJoinedFirst is solveFirst on a joined curve (see solveJoined): the
+// first crossing at or after start, searched on the rarefied side up to N
+// and then, if none is there, on the extrapolated side from N.
+func (cv Curve) solveJoinedFirst(f func(float64) float64, target, lo, scale, maxT, start float64) float64 {
+	n := float64(cv.Counts.Reads()) / scale
+	if cv.Model == nil {
+		return solveFirst(f, target, lo, math.Min(maxT, n), start)
+	}
+	if !(n > lo && n < maxT) {
+		return solveFirst(f, target, lo, maxT, start)
+	}
+	if !(start >= n) {
+		if r := solveFirst(f, target, lo, n, start); !math.IsNaN(r) {
+			return r
+		}
+		start = n
+	}
+	return solveFirst(f, target, n, maxT, start)
+}
+
+// solveGuess is solveIncreasing searched from a guess x0 (solveNear), with
+// f0 = f(x0) when known (NaN when not); a guess outside [lo, hi], NaN
+// included, is no guess.
+func solveGuess(f func(float64) float64, target, lo, hi, x0, f0 float64) float64 {
+	if !(x0 >= lo && x0 <= hi) {
+		return solveIncreasing(f, target, lo, hi)
+	}
+	if math.IsNaN(f0) {
+		f0 = f(x0)
+	}
+	return solveNear(f, target, lo, hi, x0, f0)
+}
+
+// mirrorGuess guesses an interval's second end from its point answer r and
+// first end e: as far from r on the other side, in u = log(1+T).
+func mirrorGuess(r, e float64) float64 {
+	return math.Expm1(2*math.Log1p(r) - math.Log1p(e))
+}
+
+// bracketStep is solveNear's first step from its guess, in u = log(1+T):
+// about 5% of the depth, the usual distance of a reach interval's end from
+// the point answer being a few times that.
+const bracketStep = 0.05
+
+// narrowRoot narrows the bracket a < root ≤ b of solveIncreasing (f(a) =
+// fa < target ≤ f(b) = fb) to at most half a read by Brent's method
+// (Brent 1973, ch. 4: inverse quadratic or secant steps, a halving when
+// they would not shrink the bracket fast enough), on the scale
+// u = log(1+T), where the curves' depth dependence is close to a power
+// law. A value at or above the target counts as the upper side (so the
+// bracket keeps solveIncreasing's meaning), and a NaN stops the
+// narrowing: bisection then evaluates every midpoint inside what is left,
+// as plain bisection would.
+func narrowRoot(f func(float64) float64, target, a, fa, b, fb float64) (float64, float64) {
+	// Brent's names: b the best estimate, c the other end of the bracket,
+	// a the previous b.
+	lo, hi := a, b
+	ua, ub := math.Log1p(a), math.Log1p(b)
+	ga, gb := fa-target, fb-target
+	uc, gc := ua, ga
+	d := ub - ua
+	e := d
+	if math.IsNaN(ga) || math.IsNaN(gb) {
+		return a, b
+	}
+	for i := 0; i < searchIter; i++ {
+		if (gb >= 0) == (gc >= 0) {
+			uc, gc = ua, ga
+			d = ub - ua
+			e = d
+		}
+		if math.Abs(gc) < math.Abs(gb) {
+			ua, ub, uc = ub, uc, ub
+			ga, gb, gc = gb, gc, gb
+		}
+		tb, tc := math.Expm1(ub), math.Expm1(uc)
+		if gb >= 0 {
+			lo, hi = tc, tb
+		} else {
+			lo, hi = tb, tc
+		}
+		if hi-lo <= 0.5 || gb == 0 {
+			break
+		}
+		// The smallest step: a tenth of a read at b, in u.
+		tol := 2*epsU*math.Abs(ub) + 0.1/(1+tb)
+		xm := (uc - ub) / 2
+		if math.Abs(e) >= tol && math.Abs(ga) > math.Abs(gb) && isFinite(ga) && isFinite(gb) && isFinite(gc) {
+			var p, q float64
+			s := gb / ga
+			if ua == uc {
+				p, q = 2*xm*s, 1-s
+			} else {
+				qq, r := ga/gc, gb/gc
+				p = s * (2*xm*qq*(qq-r) - (ub-ua)*(r-1))
+				q = (qq - 1) * (r - 1) * (s - 1)
+			}
+			if p > 0 {
+				q = -q
+			}
+			p = math.Abs(p)
+			if 2*p < math.Min(3*xm*q-math.Abs(tol*q), math.Abs(e*q)) {
+				e, d = d, p/q
+			} else {
+				d, e = xm, xm
+			}
+		} else {
+			d, e = xm, xm
+		}
+		ua, ga = ub, gb
+		if math.Abs(d) > tol {
+			ub += d
+		} else {
+			ub += math.Copysign(tol, xm)
+		}
+		x := math.Expm1(ub)
+		if !(x > lo && x < hi) { // round-off at the ends: halve in T
+			x = lo + (hi-lo)/2
+			ub = math.Log1p(x)
+		}
+		gb = f(x) - target
+		if math.IsNaN(gb) {
+			break
+		}
+	}
+	return lo, hi
+}
+
+// epsU is float64's relative precision, Brent's round-off term in u.
+const epsU = 0x1p-52
 
 // ReadsFor returns the smallest depth T in reads, at most maxT, at which
 // the curve's expectation reaches t (see TargetKind), NaN when it does not
@@ -163,16 +459,44 @@ func (cv Curve) solve(t Target, scale, maxT float64) float64 {
 // rarefied one exact), so a slope target could be crossed twice near N.
 // A target met at N is answered at or below it, from rarefaction.
 func (cv Curve) solveJoined(f func(float64) float64, target, lo, scale, maxT float64) float64 {
+	return cv.solveJoinedNear(f, target, lo, scale, maxT, math.NaN())
+}
+
+// solveJoinedNear is solveJoined with a guess at the answer (NaN for
+// none), searched from there (solveNear); the answer does not depend on
+// the guess. Each side of N being monotone, a guess on one side can settle
+// which side holds the answer without f(N): at or below N and reaching
+// the target, the target is reached at N too; above N and short of it,
+// so is N.
+func (cv Curve) solveJoinedNear(f func(float64) float64, target, lo, scale, maxT, guess float64) float64 {
 	n := float64(cv.Counts.Reads()) / scale
+	near := func(lo, hi, x0, f0 float64) float64 { return solveGuess(f, target, lo, hi, x0, f0) }
 	if cv.Model == nil {
 		// Only rarefaction is known: search up to N, not into NaN.
-		return solveIncreasing(f, target, lo, math.Min(maxT, n))
+		return near(lo, math.Min(maxT, n), guess, math.NaN())
 	}
 	if !(n > lo && n < maxT) {
-		return solveIncreasing(f, target, lo, maxT)
+		return near(lo, maxT, guess, math.NaN())
 	}
-	if f(n) >= target {
-		return solveIncreasing(f, target, lo, n)
+	fg := math.NaN()
+	if guess >= lo && guess <= maxT {
+		fg = f(guess)
+		switch {
+		case guess <= n && fg >= target:
+			return near(lo, n, guess, fg)
+		case guess >= n && !(fg >= target):
+			return near(n, maxT, guess, fg)
+		}
 	}
-	return solveIncreasing(f, target, n, maxT)
+	fn := f(n)
+	if fn >= target {
+		if guess >= lo && guess <= n {
+			return near(lo, n, guess, fg)
+		}
+		return near(lo, n, n, fn)
+	}
+	if guess >= n && guess <= maxT {
+		return near(n, maxT, guess, fg)
+	}
+	return near(n, maxT, n, fn)
 }

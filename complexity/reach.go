@@ -42,11 +42,11 @@ func (a *analysis) reach() []Reached {
 		}
 		switch {
 		case t.Kind == TargetDistinct || t.Kind == TargetDup:
-			q.Lo, q.Hi = a.reachBand(t, maxT)
+			q.Lo, q.Hi = a.reachBand(t, maxT, q.Reads)
 		case t.Kind == TargetYield:
-			q.Lo, q.Hi = a.reachYield(t.Value, maxT)
+			q.Lo, q.Hi = a.reachYield(t.Value, maxT, q.Reads)
 		case a.cv.Model != nil:
-			q.Lo, q.Hi = a.reachYield(1-t.Value, maxT) // coverage as yield 1 − C
+			q.Lo, q.Hi = a.reachYield(1-t.Value, maxT, q.Reads) // coverage as yield 1 − C
 		}
 		if !math.IsNaN(q.Lo) {
 			q.Lo = math.Min(q.Lo, q.Reads)
@@ -112,8 +112,13 @@ func (a *analysis) unreached(t Target, maxT float64) string {
 }
 
 // reachBand inverts the distinct interval for a distinct or dup target
-// (see reach).
-func (a *analysis) reachBand(t Target, maxT float64) (lo, hi float64) {
+// (see reach). Lo is where the band end that gets there first reaches the
+// target, searched from the point answer r (a guess: for a monotone band
+// end the answer does not depend on it; see solveNear); Hi is the first
+// depth where the other end does (solveFirst: that end can turn back far
+// out, and the first crossing is the valid one), searched from r, which
+// it cannot precede (it bounds the point curve from the far side).
+func (a *analysis) reachBand(t Target, maxT, r float64) (lo, hi float64) {
 	var buf []float64
 	bound := func(upper bool) func(float64) float64 {
 		return func(T float64) float64 {
@@ -137,7 +142,10 @@ func (a *analysis) reachBand(t Target, maxT float64) (lo, hi float64) {
 		// The most duplicates come with the fewest distinct units.
 		first, last, from = last, first, 1
 	}
-	lo, hi = solveIncreasing(first, t.Value, from, maxT), solveIncreasing(last, t.Value, from, maxT)
+	lo, hi = solveGuess(first, t.Value, from, maxT, r, math.NaN()), math.NaN()
+	if !math.IsNaN(lo) {
+		hi = solveFirst(last, t.Value, from, maxT, math.Max(lo, r))
+	}
 	if math.IsNaN(hi) && a.reps != nil {
 		hi = math.Inf(1) // the bound is beyond the horizon
 	}
@@ -151,8 +159,11 @@ func (a *analysis) reachBand(t Target, maxT float64) (lo, hi float64) {
 // replicate's slope at T, in the sample's depths) and s_model the knots
 // of the distinct intervals, as if the model's error on the new units
 // carried over to their slope. Lo is where the lower end falls to the
-// target, Hi where the upper end does (+Inf beyond the horizon).
-func (a *analysis) reachYield(y, maxT float64) (lo, hi float64) {
+// target, searched from the point answer r as in reachBand, Hi the first
+// depth where the upper end does (+Inf beyond the horizon), searched
+// from r as in reachBand: the upper end's spread grows fastest far out,
+// where it can turn back up past the target (solveFirst).
+func (a *analysis) reachYield(y, maxT, r float64) (lo, hi float64) {
 	if a.reps == nil {
 		return missing, missing
 	}
@@ -173,8 +184,10 @@ func (a *analysis) reachYield(y, maxT float64) (lo, hi float64) {
 			return -p * math.Exp(sign*logSpread(buf, 0, a.level, math.Hypot(modelErr(a.knots, T/n), fitErr(a.fitKnots, T/n, a.bt))))
 		}
 	}
-	lo = a.cv.solveJoined(bound(-1), -y, 1, 1, maxT)
-	hi = a.cv.solveJoined(bound(1), -y, 1, 1, maxT)
+	lo, hi = a.cv.solveJoinedNear(bound(-1), -y, 1, 1, maxT, r), math.NaN()
+	if !math.IsNaN(lo) {
+		hi = a.cv.solveJoinedFirst(bound(1), -y, 1, 1, maxT, math.Max(lo, r))
+	}
 	if math.IsNaN(hi) {
 		hi = math.Inf(1) // the bound is beyond the horizon
 	}
