@@ -244,6 +244,10 @@ func admissibleFrom(m Model, n, d, maxT float64) bool {
 	prevSlope := math.Inf(1)
 	var prevDen float64
 	rfa, _ := m.(*rfaModel)
+	grid, _ := m.(*gridModel)
+	if grid != nil && (!grid.mixtureCurve() || maxT < 2*n) { // see passesBeyond
+		grid = nil
+	}
 	for i := 1; i <= admissGrid; i++ {
 		T := n * math.Pow(maxT/n, float64(i)/admissGrid)
 		v := m.Distinct(T)
@@ -269,6 +273,9 @@ func admissibleFrom(m Model, n, d, maxT float64) bool {
 			return false // convex
 		}
 		prevT, prevV, prevSlope = T, v, slope
+		if i == 1 && grid != nil && grid.passesBeyond(T, v, n, d) {
+			return true
+		}
 	}
 	// The initial slope cannot exceed the chance that the next read is new,
 	// which is at most 1.

@@ -158,3 +158,61 @@ func TestRunningAbsent(t *testing.T) {
 		}
 	}
 }
+
+// plainModel hides a model's type, so admissibleFrom runs every grid
+// point (no passesBeyond).
+type plainModel struct{ Model }
+
+// TestAdmissibleShortcut: admissibleFrom's early answer for mixture
+// curves (passesBeyond) is the answer of the full check, on random
+// Poisson mixtures whose initial slope is put near 1 (where the "more new
+// units than reads" check decides) and on ones far from it.
+func TestAdmissibleShortcut(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 2))
+	var early, pass, fail int
+	for trial := 0; trial < 3000; trial++ {
+		k := 1 + rng.IntN(60)
+		m := &gridModel{name: "test", n: math.Exp(3 + 12*rng.Float64())}
+		m.d = m.n * rng.Float64()
+		var slope float64 // D'(n) per unit of a
+		for i := 0; i < k; i++ {
+			l := math.Exp(-6 + 12*rng.Float64())
+			w := rng.ExpFloat64()
+			if rng.IntN(5) == 0 {
+				w *= 1e-8
+			}
+			m.lam, m.g = append(m.lam, l), append(m.g, w/math.Exp(l))
+			m.ge = append(m.ge, w)
+			slope += w * l / m.n
+		}
+		// Initial slope near 1 in half the trials, spread otherwise.
+		want := 0.2 + 1.6*rng.Float64()
+		if trial%2 == 0 {
+			want = 1 + (rng.Float64()-0.5)*1e-6
+		}
+		m.a = want / slope
+		n, d := m.n, m.d
+		if rng.IntN(4) == 0 { // checked from another point of the curve
+			n *= 1 + rng.Float64()
+			d = m.Distinct(n)
+		}
+		maxT := n * math.Exp(1+6*rng.Float64())
+		got, full := admissibleFrom(m, n, d, maxT), admissibleFrom(plainModel{m}, n, d, maxT)
+		if got != full {
+			t.Fatalf("trial %d: admissibleFrom %v, full check %v (slope %v, n %v, maxT %v)", trial, got, full, want, n, maxT)
+		}
+		t1 := n * math.Pow(maxT/n, 1.0/admissGrid)
+		if m.passesBeyond(t1, m.Distinct(t1), n, d) {
+			early++
+		}
+		if full {
+			pass++
+		} else {
+			fail++
+		}
+	}
+	t.Logf("admissible %d, not %d; answered at the first point %d", pass, fail, early)
+	if early == 0 || fail == 0 {
+		t.Errorf("the trials did not exercise both answers and the shortcut")
+	}
+}
