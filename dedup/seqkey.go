@@ -201,20 +201,44 @@ func collapseKeys(ms []umiMol, l *libAcc, dist int64, threads int) {
 			}
 		}()
 	}
-	if threads <= 1 {
-		wg.Wait() // one worker at a time
-	}
-	order := sortOrder(ms)
 	wg.Wait()
-	rank := permute(ms, order)
-	order = nil
+	// A key without an edge is a molecule of its own, whatever the order,
+	// and l.count does not depend on the order of its calls: count those
+	// now and sort only the keys with an edge (a few percent of them, the
+	// error copies and their sources). rank maps an old index to its
+	// position among the keys kept, then in sorted order.
+	rank := make([]int32, len(ms))
+	for _, f := range found {
+		for _, e := range f {
+			rank[e>>32] = 1
+		}
+	}
+	kept := 0
+	for i := range ms {
+		if rank[i] == 0 {
+			l.count(ms[i].n, ms[i].spots, dist)
+			continue
+		}
+		rank[i] = int32(kept)
+		ms[kept] = ms[i]
+		kept++
+	}
+	clear(ms[kept:]) // release the spots of the keys counted
+	ms = ms[:kept]
+	if kept == 0 {
+		return
+	}
+	sorted := permute(ms, sortOrder(ms))
+	for i, r := range rank {
+		rank[i] = sorted[r]
+	}
 	var edges []uint64 // both directions, as edge(a, b) in sorted order
 	for _, f := range found {
 		for _, e := range f {
 			edges = append(edges, edge(rank[e>>32], rank[uint32(e)]))
 		}
 	}
-	found, rank = [6][]uint64{}, nil
+	found, rank, sorted = [6][]uint64{}, nil, nil
 	// Adjacency lists (compressed rows; a pair found by several quarter
 	// pairs is listed several times, which the directional pass ignores).
 	slices.Sort(edges)
