@@ -159,16 +159,20 @@ func gridKernel(J int) *kernel {
 		k.freeHi--
 	}
 	if J == 15 {
-		k.rows15 = make([]float64, 0, n*row15)
+		// Each ends in rowPad zeros: the vector kernel of mixSums15 reads
+		// whole vectors, past the last row's 17 values.
+		k.rows15 = make([]float64, 0, n*row15+rowPad)
 		for i := 0; i < n; i++ {
 			k.rows15 = append(k.rows15, k.p[i][1:]...)
 			k.rows15 = append(k.rows15, k.tail[i], k.seen[i])
 		}
-		k.rowsFree15 = make([]float64, 0, n*row15)
+		k.rows15 = append(k.rows15, make([]float64, rowPad)...)
+		k.rowsFree15 = make([]float64, 0, n*row15+rowPad)
 		for i := 0; i < n; i++ {
 			k.rowsFree15 = append(k.rowsFree15, k.p[i][1:]...)
 			k.rowsFree15 = append(k.rowsFree15, k.pin[i], k.seen[i])
 		}
+		k.rowsFree15 = append(k.rowsFree15, make([]float64, rowPad)...)
 	}
 	kernelCache[J] = k
 	return k
@@ -242,10 +246,10 @@ func gridSums(k *kernel, rows, x, g []float64, lo, hi int, pj []float64) (sx, ps
 		}
 		row := k.p[i]
 		for j := 1; j <= k.J; j++ {
-			pj[j] += w * row[j]
+			pj[j] += float64(w * row[j]) // rounded, not fused: as mixSums15
 		}
-		sx += w * x[i]
-		ps += w * k.seen[i]
+		sx += float64(w * x[i])
+		ps += float64(w * k.seen[i])
 	}
 	return sx, ps
 }
@@ -263,46 +267,6 @@ func classLogLik(hs *hist, pj []float64) (float64, bool) {
 		}
 	}
 	return ll, true
-}
-
-// mixSums15 sets pj[j] = Σ_i g_i P(j | λ_{lo+i}), j = 1..15, and returns
-// the weighted sums of the rows' columns 15 (P(X > 15 | λ) in
-// kernel.rows15, P(1 ≤ X ≤ 15 | λ) in kernel.rowsFree15) and 16
-// (1 − e^{−λ}), over the rows from lo. Each sum runs over i in ascending order, as in
-// the general loop of gridSums (a zero weight adds an exact zero), so the
-// results are the same bits; two passes of eight and nine accumulators fit
-// the registers.
-func mixSums15(rows, g []float64, lo int, pj []float64) (pt, ps float64) {
-	rows = rows[lo*row15:]
-	var p1, p2, p3, p4, p5, p6, p7, p8 float64
-	for i, w := range g {
-		r := (*[row15]float64)(rows[i*row15:])
-		p1 += w * r[0]
-		p2 += w * r[1]
-		p3 += w * r[2]
-		p4 += w * r[3]
-		p5 += w * r[4]
-		p6 += w * r[5]
-		p7 += w * r[6]
-		p8 += w * r[7]
-	}
-	var p9, p10, p11, p12, p13, p14, p15 float64
-	for i, w := range g {
-		r := (*[row15]float64)(rows[i*row15:])
-		p9 += w * r[8]
-		p10 += w * r[9]
-		p11 += w * r[10]
-		p12 += w * r[11]
-		p13 += w * r[12]
-		p14 += w * r[13]
-		p15 += w * r[14]
-		pt += w * r[15]
-		ps += w * r[16]
-	}
-	pj = pj[:16]
-	pj[0], pj[1], pj[2], pj[3], pj[4], pj[5], pj[6], pj[7] = 0, p1, p2, p3, p4, p5, p6, p7
-	pj[8], pj[9], pj[10], pj[11], pj[12], pj[13], pj[14], pj[15] = p8, p9, p10, p11, p12, p13, p14, p15
-	return pt, ps
 }
 
 // gridModel is a fitted rate distribution on the log-rate grid:
