@@ -59,3 +59,34 @@ func TestMixSums15Kernel(t *testing.T) {
 		}
 	}
 }
+
+// TestGridChainsSideBySide: gaussGrid and powerGrid, which advance their
+// blocks of products side by side, give the bits of the one-point-after-
+// another recurrences, on every stretch of the grid and random parameters
+// over the fits' ranges.
+func TestGridChainsSideBySide(t *testing.T) {
+	r := rand.New(rand.NewPCG(32, 8))
+	k := gridKernel(15)
+	n := len(k.x)
+	got, want := make([]float64, n), make([]float64, n)
+	for trial := 0; trial < 4000; trial++ {
+		lo := r.IntN(n)
+		x := k.x[lo : lo+r.IntN(n-lo+1)]
+		if trial%2 == 0 {
+			mu := gridLo + (gridHi-gridLo)*r.Float64()
+			sigma := lnSigmaMin + (lnSigmaMax-lnSigmaMin)*r.Float64()
+			gaussGrid(got, x, mu, sigma)
+			gaussGridSeq(want, x, mu, sigma)
+		} else {
+			alpha := paretoAlphaMin + (paretoAlphaMax-paretoAlphaMin)*r.Float64()
+			a := gridLo + (gridHi-gridLo)*r.Float64()
+			powerGrid(got, x, alpha, a)
+			powerGridSeq(want, x, alpha, a)
+		}
+		for i := range x {
+			if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
+				t.Fatalf("trial %d, point %d of %d: %v, one at a time %v", trial, i, len(x), got[i], want[i])
+			}
+		}
+	}
+}

@@ -106,6 +106,10 @@ type kernel struct {
 	pin        []float64
 	freeHi     int
 	rowsFree15 []float64
+	// cellLo, cellHi: x ∓ step/2, the edges of each grid point's cell;
+	// shareIn: the share of a cell inside a power-law band that covers it,
+	// min(1, (cellHi − cellLo)/step) (not exactly 1 in float64).
+	cellLo, cellHi, shareIn []float64
 }
 
 // freeNegligible is the P(1 ≤ X ≤ J | λ) below which a grid point is left
@@ -153,6 +157,11 @@ func gridKernel(J int) *kernel {
 			s += row[j]
 		}
 		k.pin[i] = s
+	}
+	k.cellLo, k.cellHi, k.shareIn = make([]float64, n), make([]float64, n), make([]float64, n)
+	for i, x := range k.x {
+		k.cellLo[i], k.cellHi[i] = x-gridStep/2, x+gridStep/2
+		k.shareIn[i] = fmax(0, fmin(1, (k.cellHi[i]-k.cellLo[i])/gridStep))
 	}
 	k.freeHi = n
 	for k.freeHi > 0 && k.pin[k.freeHi-1] < freeNegligible {
@@ -563,23 +572,67 @@ func (f *paretoFit) weights(p []float64) (lo, hi int, ok bool) {
 	g := f.g[:hi-lo]
 	// The weight e^{−α(x − a)} (scaled by e^{−α a} so weights stay near 1
 	// at the cutoff) by the lattice recurrence w_{i+1} = w_i e^{−α·step},
-	// recomputed directly every gaussAnchor points as in gaussGrid: the
-	// per-point exponential was most of the cost of a power-law fit.
+	// recomputed directly every gaussAnchor points as in gaussGrid (the
+	// per-point exponential was most of the cost of a power-law fit),
+	// then times the share of the cell inside [a, b].
+	powerGrid(g, f.k.x[lo:hi], alpha, a)
+	k := f.k
+	for i := lo; i < hi; i++ {
+		// Share of the cell inside [a, b] (fmin and fmax: the values
+		// are finite, a, b and the grid checked above); a cell inside
+		// has its share precomputed (the same operations).
+		c := k.shareIn[i]
+		if b < k.cellHi[i] || a > k.cellLo[i] {
+			share := (fmin(k.cellHi[i], b) - fmax(k.cellLo[i], a)) / gridStep
+			c = fmax(0, fmin(1, share))
+		}
+		g[i-lo] *= c
+	}
+	return lo, hi, true
+}
+
+// powerGrid sets dst[i] = e^{−α(x[i] − a)} on the grid, a direct value
+// every gaussAnchor points and w_{i+1} = w_i e^{−α·step} between them; the
+// blocks advance side by side as in gaussGrid, each with powerGridSeq's bits.
+func powerGrid(dst, x []float64, alpha, a float64) {
+	n := len(x)
+	nb := (n + gaussAnchor - 1) / gaussAnchor
+	if nb > maxBlocks {
+		powerGridSeq(dst, x, alpha, a)
+		return
+	}
+	r := math.Exp(-alpha * gridStep)
+	var ws [maxBlocks]float64
+	for b := 0; b < nb; b++ {
+		i := b * gaussAnchor
+		ws[b] = math.Exp(-alpha * (x[i] - a))
+		dst[i] = ws[b]
+	}
+	dst = dst[:n]
+	for s := 1; s < gaussAnchor; s++ {
+		for b := 0; b < nb; b++ {
+			i := b*gaussAnchor + s
+			if i >= n {
+				break // only the last block is short
+			}
+			ws[b] *= r
+			dst[i] = ws[b]
+		}
+	}
+}
+
+// powerGridSeq is powerGrid one point after another (its test's reference).
+func powerGridSeq(dst, x []float64, alpha, a float64) {
 	r := math.Exp(-alpha * gridStep)
 	var w float64
-	for i := lo; i < hi; i++ {
-		x := f.k.x[i]
-		if (i-lo)%gaussAnchor == 0 {
-			w = math.Exp(-alpha * (x - a))
+	for i := range x {
+		if i%gaussAnchor == 0 {
+			w = math.Exp(-alpha * (x[i] - a))
 		} else {
 			w *= r
 		}
-		// Share of the cell inside [a, b] (fmin and fmax: the values
-		// are finite, a, b and the grid checked above).
-		share := (fmin(x+gridStep/2, b) - fmax(x-gridStep/2, a)) / gridStep
-		g[i-lo] = w * fmax(0, fmin(1, share))
+		dst[i] = w
 	}
-	return lo, hi, true
 }
 
 func (f *paretoFit) nll(p []float64) float64 {
