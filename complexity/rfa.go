@@ -243,6 +243,9 @@ func admissibleFrom(m Model, n, d, maxT float64) bool {
 	prevT, prevV := n, d
 	prevSlope := math.Inf(1)
 	var prevDen float64
+	if s, ok := m.(*selModel); ok {
+		m = s.Model // the same curve; unwrapped, a grid curve can stop early
+	}
 	rfa, _ := m.(*rfaModel)
 	grid, _ := m.(*gridModel)
 	if grid != nil && (!grid.mixtureCurve() || maxT < 2*n) { // see passesBeyond
