@@ -60,7 +60,7 @@ func TestBIOM2MatchesOtherLayouts(t *testing.T) {
 				}
 				continue
 			}
-			if d := sameTable(h5, readFile(t, base+other, Options{TaxaAsRows})); d != "" {
+			if d := sameTable(h5, readFile(t, base+other, Options{Layout: TaxaAsRows})); d != "" {
 				t.Errorf("%s and %s%s differ: %s", filepath.Base(f), filepath.Base(base), other, d)
 			}
 		}

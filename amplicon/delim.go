@@ -240,7 +240,6 @@ func readDelimited(br *bufio.Reader, opt Options) (*Table, error) {
 	if !ok {
 		return nil, perr(firstLine, 0, ErrShape, "no tab, comma or semicolon on the header line; a table needs an ID column and at least one count column")
 	}
-	var scratch [][]byte
 	ff, bad, msg := splitFields(first, delim, nil)
 	if bad > 0 {
 		return nil, perr(firstLine, bad, ErrSyntax, "%s", msg)
@@ -385,29 +384,12 @@ func readDelimited(br *bufio.Reader, opt Options) (*Table, error) {
 	if err := rd.row(pending, pendingLine); err != nil {
 		return nil, err
 	}
-	for {
-		line, ok := lr.nextData()
-		if !ok {
-			break
-		}
-		if done, err := rd.fastRow(line, delim, lr.line); done || err != nil {
-			if err != nil {
-				return nil, err
-			}
-			continue
-		}
-		var bad int64
-		var msg string
-		scratch, bad, msg = splitFields(line, delim, scratch)
-		if bad > 0 {
-			return nil, perr(lr.line, bad, ErrSyntax, "%s", msg)
-		}
-		if err := rd.row(scratch, lr.line); err != nil {
+	if opt.Threads == 1 {
+		if err := rd.rowsSerial(lr, delim); err != nil {
 			return nil, err
 		}
-	}
-	if lr.err != nil {
-		return nil, lr.err
+	} else if err := rd.rowsPipelined(lr, delim); err != nil {
+		return nil, err
 	}
 	if err := rd.finish(t); err != nil {
 		return nil, err
@@ -435,18 +417,40 @@ type rowReader struct {
 
 // row reads one data row already split into fields.
 func (rd *rowReader) row(f [][]byte, line int64) error {
+	id, err, idFirst := rd.parseFields(f, line, rd.values())
+	if err != nil {
+		if idFirst {
+			if e := rd.checkID(id, line); e != nil {
+				return e
+			}
+		}
+		return err
+	}
+	return rd.commit(id, line)
+}
+
+// commit checks the row's ID and adds its values (rd.vals).
+func (rd *rowReader) commit(id []byte, line int64) error {
+	if err := rd.checkID(id, line); err != nil {
+		return err
+	}
+	return rd.apply(string(id), line)
+}
+
+// parseFields parses a row already split into fields into vals (one per
+// count column) and returns its ID. An error is the row's shape (idFirst
+// false) or a cell (idFirst true: a bad ID is reported before it, as the
+// row is checked in that order).
+func (rd *rowReader) parseFields(f [][]byte, line int64, vals []int64) (id []byte, err error, idFirst bool) {
 	if len(f) != len(rd.names) && !(rd.meta < len(rd.names) && len(f) >= rd.meta && len(f) < len(rd.names)) {
 		col := int64(len(f))
 		if len(f) > len(rd.names) {
 			col = int64(len(rd.names) + 1)
 		}
-		return perr(line, col, ErrShape, "row has %d fields but the header (line %d) has %d; every row needs one cell per column",
-			len(f), rd.headerLine, len(rd.names))
+		return nil, perr(line, col, ErrShape, "row has %d fields but the header (line %d) has %d; every row needs one cell per column",
+			len(f), rd.headerLine, len(rd.names)), false
 	}
-	if err := rd.checkID(trimSpace(f[0]), line); err != nil {
-		return err
-	}
-	vals := rd.values()
+	id = trimSpace(f[0])
 	for j := 1; j < rd.meta; j++ {
 		v, ce := parseCount(f[j])
 		if ce != nil {
@@ -454,11 +458,11 @@ func (rd *rowReader) row(f [][]byte, line int64) error {
 			if rd.layout == TaxaAsRows {
 				what = "sample"
 			}
-			return perr(line, int64(j+1), ce.kind, "%s %s: %s", what, quote(rd.names[j]), ce.msg)
+			return id, perr(line, int64(j+1), ce.kind, "%s %s: %s", what, quote(rd.names[j]), ce.msg), true
 		}
 		vals[j-1] = v
 	}
-	return rd.apply(string(trimSpace(f[0])), line)
+	return id, nil, false
 }
 
 // fastRow reads a row of plain digits without splitting it into fields
@@ -466,19 +470,29 @@ func (rd *rowReader) row(f [][]byte, line int64) error {
 // changed nothing, when the row needs the general path (quotes, spaces,
 // decimals, errors, omitted metadata), which then reads it again.
 func (rd *rowReader) fastRow(line []byte, delim byte, lineNo int64) (bool, error) {
-	if bytes.IndexByte(line, '"') >= 0 {
+	id, ok := rd.parseFast(line, delim, rd.values())
+	if !ok {
 		return false, nil
+	}
+	return true, rd.commit(id, lineNo)
+}
+
+// parseFast parses a row of plain digits into vals and returns its ID, or
+// false when the row needs the general path (quotes, spaces, decimals,
+// errors, omitted metadata); vals may then hold some of the row's values.
+func (rd *rowReader) parseFast(line []byte, delim byte, vals []int64) ([]byte, bool) {
+	if bytes.IndexByte(line, '"') >= 0 {
+		return nil, false
 	}
 	k := bytes.IndexByte(line, delim)
 	if k <= 0 {
-		return false, nil
+		return nil, false
 	}
 	id := line[:k]
 	if id[0] == ' ' || id[len(id)-1] == ' ' {
-		return false, nil
+		return nil, false
 	}
 	n := rd.meta - 1
-	vals := rd.values()
 	i := k + 1
 	for j := 0; j < n; j++ {
 		var v int64
@@ -491,26 +505,23 @@ func (rd *rowReader) fastRow(line []byte, delim byte, lineNo int64) (bool, error
 			v = v*10 + int64(c)
 		}
 		if d := i - start; d == 0 || d > 18 {
-			return false, nil
+			return nil, false
 		}
 		switch {
 		case j < n-1 || rd.meta < len(rd.names):
 			if i >= len(line) || line[i] != delim {
-				return false, nil
+				return nil, false
 			}
 			i++
 		case i != len(line):
-			return false, nil
+			return nil, false
 		}
 		vals[j] = v
 	}
 	if rd.meta < len(rd.names) && rd.meta+1+bytes.Count(line[i:], []byte{delim}) > len(rd.names) {
-		return false, nil
+		return nil, false
 	}
-	if err := rd.checkID(id, lineNo); err != nil {
-		return true, err
-	}
-	return true, rd.apply(string(id), lineNo)
+	return id, true
 }
 
 // values returns the row buffer of count values.

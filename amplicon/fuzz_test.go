@@ -29,15 +29,35 @@ func checkInvariants(t *testing.T, tab *Table) {
 }
 
 // fuzzRead runs Read in every layout and checks it fails only with a
-// *ParseError (or succeeds with a consistent table).
+// *ParseError (or succeeds with a consistent table), and that the serial
+// reader (Threads 1) gives the same table or the same error.
 func fuzzRead(t *testing.T, data []byte) {
 	for _, l := range []Layout{LayoutAuto, TaxaAsRows, SamplesAsRows} {
 		tab, err := Read(bytes.NewReader(data), Options{Layout: l})
+		sameAsSerial(t, data, Options{Layout: l, Threads: 1}, tab, err)
 		if err != nil {
 			checkParseError(t, err)
 			continue
 		}
 		checkInvariants(t, tab)
+	}
+}
+
+// sameAsSerial fails t unless reading data with opt gives tab, err.
+func sameAsSerial(t *testing.T, data []byte, opt Options, tab *Table, err error) {
+	t.Helper()
+	st, serr := Read(bytes.NewReader(data), opt)
+	switch {
+	case (err == nil) != (serr == nil):
+		t.Fatalf("pipelined error %v, serial error %v", err, serr)
+	case err != nil:
+		if err.Error() != serr.Error() {
+			t.Fatalf("pipelined error %q, serial error %q", err, serr)
+		}
+	default:
+		if d := sameTable(tab, st); d != "" || tab.Format != st.Format || tab.Layout != st.Layout || strings.Join(tab.Notes, "|") != strings.Join(st.Notes, "|") {
+			t.Fatalf("pipelined and serial tables differ: %s (format %s/%s, layout %v/%v, notes %q/%q)", d, tab.Format, st.Format, tab.Layout, st.Layout, tab.Notes, st.Notes)
+		}
 	}
 }
 

@@ -39,6 +39,9 @@ func (l Layout) String() string {
 type Options struct {
 	// Layout of delimited text; ignored for BIOM (whose rows are taxa).
 	Layout Layout
+	// Threads: 1 reads a delimited table on the calling goroutine; any
+	// other value parses its rows on a second one (same result).
+	Threads int
 }
 
 // Sample is one sample of a table.

@@ -53,7 +53,7 @@ func runTaxa(a *app, args []string) error {
 	if err := s.checkOutputs([]string{file}); err != nil {
 		return err
 	}
-	opt := amplicon.Options{}
+	opt := amplicon.Options{Threads: s.threads}
 	switch {
 	case *samplesRows:
 		opt.Layout = amplicon.SamplesAsRows
