@@ -2,6 +2,7 @@ package complexity_test
 
 import (
 	"os"
+	"slices"
 	"strconv"
 	"syscall"
 	"testing"
@@ -17,7 +18,9 @@ import (
 // scripts/bench_taxa.sh); it is skipped when the variable is unset. It
 // reports wall and CPU (user+sys of the process, getrusage) ms per sample,
 // one goroutine; on a shared machine the CPU figure is the one to compare.
-// The cost of a bootstrap replicate is (boot=20 − boot=0)/20.
+// median-ms/sample is the median over the samples of one Analyze call's
+// wall time (the first iteration's), what a typical sample costs. The
+// cost of a bootstrap replicate is (boot=20 − boot=0)/20.
 //
 //	HEADROOM_BENCH_TABLE=/tmp/headroom-bench-taxa/dense_2000x20000.tsv \
 //	    go test ./complexity -run '^$' -bench AnalyzeTable -cpuprofile cpu.out
@@ -52,14 +55,21 @@ func BenchmarkAnalyzeTable(b *testing.B) {
 	}{{"boot=0", 0}, {"boot=20", 20}} {
 		b.Run(bc.name, func(b *testing.B) {
 			cpu0 := cpuTime()
+			each := make([]float64, len(samples))
 			for i := 0; i < b.N; i++ {
-				for _, s := range samples {
+				for k, s := range samples {
+					t0 := time.Now()
 					complexity.Analyze(s.Counts, opts(s.Counts, bc.boot))
+					if i == 0 {
+						each[k] = float64(time.Since(t0).Nanoseconds()) / 1e6
+					}
 				}
 			}
 			per := float64(b.N * len(samples))
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/1e6/per, "ms/sample")
 			b.ReportMetric(float64((cpuTime()-cpu0).Nanoseconds())/1e6/per, "cpu-ms/sample")
+			slices.Sort(each)
+			b.ReportMetric(each[len(each)/2], "median-ms/sample")
 		})
 	}
 }
