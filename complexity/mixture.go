@@ -576,17 +576,28 @@ func (f *paretoFit) weights(p []float64) (lo, hi int, ok bool) {
 	// per-point exponential was most of the cost of a power-law fit),
 	// then times the share of the cell inside [a, b].
 	powerGrid(g, f.k.x[lo:hi], alpha, a)
+	// Share of a cell inside [a, b] (fmin and fmax: the values are
+	// finite, a, b and the grid checked above). A cell inside has its
+	// share precomputed (the same operations); as cellLo and cellHi
+	// increase with i, the cells that a or b cut are the first ones
+	// (a > cellLo) and the last ones (b < cellHi).
 	k := f.k
-	for i := lo; i < hi; i++ {
-		// Share of the cell inside [a, b] (fmin and fmax: the values
-		// are finite, a, b and the grid checked above); a cell inside
-		// has its share precomputed (the same operations).
-		c := k.shareIn[i]
-		if b < k.cellHi[i] || a > k.cellLo[i] {
-			share := (fmin(k.cellHi[i], b) - fmax(k.cellLo[i], a)) / gridStep
-			c = fmax(0, fmin(1, share))
-		}
-		g[i-lo] *= c
+	edge := func(i int) {
+		share := (fmin(k.cellHi[i], b) - fmax(k.cellLo[i], a)) / gridStep
+		g[i-lo] *= fmax(0, fmin(1, share))
+	}
+	i1 := lo
+	for ; i1 < hi && a > k.cellLo[i1]; i1++ {
+		edge(i1)
+	}
+	i2 := hi
+	for i2 > i1 && b < k.cellHi[i2-1] {
+		i2--
+		edge(i2)
+	}
+	in := k.shareIn[i1:i2]
+	for i, c := range in {
+		g[i1-lo+i] *= c
 	}
 	return lo, hi, true
 }
@@ -604,21 +615,22 @@ func powerGrid(dst, x []float64, alpha, a float64) {
 	r := math.Exp(-alpha * gridStep)
 	var ws [maxBlocks]float64
 	for b := 0; b < nb; b++ {
-		i := b * gaussAnchor
-		ws[b] = math.Exp(-alpha * (x[i] - a))
-		dst[i] = ws[b]
+		ws[b] = math.Exp(-alpha * (x[b*gaussAnchor] - a))
 	}
-	dst = dst[:n]
-	for s := 1; s < gaussAnchor; s++ {
-		for b := 0; b < nb; b++ {
-			i := b*gaussAnchor + s
-			if i >= n {
-				break // only the last block is short
-			}
-			ws[b] *= r
-			dst[i] = ws[b]
+	var buf [maxBlocks * gaussAnchor]float64
+	for g := 0; g < nb; g += 4 {
+		w0, w1, w2, w3 := ws[g], ws[g+1], ws[g+2], ws[g+3]
+		p := (*[4 * gaussAnchor]float64)(buf[g*gaussAnchor:])
+		p[0], p[gaussAnchor], p[2*gaussAnchor], p[3*gaussAnchor] = w0, w1, w2, w3
+		for s := 1; s < gaussAnchor; s++ {
+			w0 *= r
+			w1 *= r
+			w2 *= r
+			w3 *= r
+			p[s], p[gaussAnchor+s], p[2*gaussAnchor+s], p[3*gaussAnchor+s] = w0, w1, w2, w3
 		}
 	}
+	copy(dst[:n], buf[:n])
 }
 
 // powerGridSeq is powerGrid one point after another (its test's reference).
