@@ -2,6 +2,7 @@ package dedup
 
 import (
 	"cmp"
+	"math"
 	"slices"
 	"sort"
 
@@ -341,6 +342,85 @@ func (t *table) has(key uint64) bool {
 	return false
 }
 
+// laterSpotsMax bounds the slots and later spots laterSpots groups (int32
+// offsets); a variable so that a test can take the other path.
+var laterSpotsMax = math.MaxInt32
+
+// slot returns the segment and slot of key in t, or false.
+func (t *table) slot(key uint64) (int, int, bool) {
+	s := int(key & (segments - 1))
+	sg := &t.segs[s]
+	mask := uint64(len(sg.keys) - 1)
+	for i := (key >> segmentBits) & mask; sg.keys[i] != 0; i = (i + 1) & mask {
+		if sg.keys[i] == key {
+			return s, int(i), true
+		}
+	}
+	return 0, 0, false
+}
+
+// laterSpots groups t.more by molecule: the later spots of segment s's
+// slot i are spots[off[g]:off[g+1]], g = base[s] + i, ascending (the order
+// a sort of t.more by key and spot gives them). A counting sort on the
+// slot, each key's slot found by one probe of the table: cheaper than
+// sorting t.more and searching it once per molecule. false (nothing
+// allocated) when the table is too large for int32 offsets.
+func (t *table) laterSpots() (base []int, off []int32, spots []reads.Spot, ok bool) {
+	n := 0
+	for _, c := range t.more {
+		n += len(c)
+	}
+	if n == 0 {
+		return nil, nil, nil, true
+	}
+	base = make([]int, segments+1)
+	for s := range t.segs {
+		base[s+1] = base[s] + len(t.segs[s].keys)
+	}
+	if base[segments] >= laterSpotsMax || n >= laterSpotsMax {
+		return nil, nil, nil, false
+	}
+	off = make([]int32, base[segments]+1)
+	at := make([]int32, n) // each entry's slot, then where it goes
+	j := 0
+	for _, c := range t.more {
+		for _, ks := range c {
+			at[j] = -1
+			if s, i, found := t.slot(ks.key); found {
+				g := base[s] + i
+				at[j] = int32(g)
+				off[g+1]++
+			}
+			j++
+		}
+	}
+	for g := 1; g < len(off); g++ {
+		off[g] += off[g-1]
+	}
+	next := slices.Clone(off[:len(off)-1])
+	spots = make([]reads.Spot, off[len(off)-1])
+	j = 0
+	for _, c := range t.more {
+		for _, ks := range c {
+			if g := at[j]; g >= 0 {
+				spots[next[g]] = ks.spot
+				next[g]++
+			}
+			j++
+		}
+	}
+	for g := 0; g+1 < len(off); g++ {
+		if r := spots[off[g]:off[g+1]]; len(r) > 1 {
+			for a := 1; a < len(r); a++ { // a molecule's few spots: insertion sort
+				for b := a; b > 0 && r[b] < r[b-1]; b-- {
+					r[b], r[b-1] = r[b-1], r[b]
+				}
+			}
+		}
+	}
+	return base, off, spots, true
+}
+
 // appendChunked appends ks to the last chunk, starting a new one of
 // moreChunk records when it is full.
 func appendChunked(chunks [][]keySpot, ks keySpot) [][]keySpot {
@@ -383,14 +463,21 @@ func (h *Hashed) Results(n int) []Result {
 	var spots []reads.Spot
 	for li, t := range h.tabs {
 		l := &h.libs[li]
-		more := t.sortedMore()
+		// The spots of each molecule's later reads: grouped by slot, or
+		// (a table too large for that) t.more sorted and searched.
+		var more []keySpot
+		base, off, later, grouped := t.laterSpots()
+		if !grouped {
+			more = t.sortedMore()
+		}
+		nmore := len(later) + len(more)
 		var group []umiMol // molecules with a UMI group, collapsed below
 		var keys []umiMol  // FASTQ molecules with packed keys, likewise
 		var keySpots []reads.Spot
 		if t.seqs {
 			// Sized once: the molecules and their spots are held until
 			// collapseKeys, and doubling slices would hold up to twice that.
-			used, nspots := 0, len(more)
+			used, nspots := 0, nmore
 			for s := range t.segs {
 				used += t.segs[s].used
 				for _, sp := range t.segs[s].spot {
@@ -417,7 +504,11 @@ func (h *Hashed) Results(n int) []Result {
 					if sg.spot[i] != 0 {
 						spots = append(spots, sg.spot[i])
 					}
-					if c > 1 && len(more) > 0 { // a molecule of one read has no later spots
+					switch { // a molecule of one read has no later spots
+					case c > 1 && len(later) > 0:
+						g := base[s] + i
+						spots = append(spots, later[off[g]:off[g+1]]...)
+					case c > 1 && len(more) > 0:
 						j := sort.Search(len(more), func(j int) bool { return more[j].key >= k })
 						for ; j < len(more) && more[j].key == k; j++ {
 							spots = append(spots, more[j].spot)
