@@ -3,6 +3,7 @@ package dedup
 import (
 	"cmp"
 	"math"
+	"math/bits"
 	"slices"
 	"sort"
 
@@ -359,58 +360,80 @@ func (t *table) slot(key uint64) (int, int, bool) {
 	return 0, 0, false
 }
 
-// laterSpots groups t.more by molecule: the later spots of segment s's
-// slot i are spots[off[g]:off[g+1]], g = base[s] + i, ascending (the order
-// a sort of t.more by key and spot gives them). A counting sort on the
-// slot, each key's slot found by one probe of the table: cheaper than
-// sorting t.more and searching it once per molecule. false (nothing
-// allocated) when the table is too large for int32 offsets.
-func (t *table) laterSpots() (base []int, off []int32, spots []reads.Spot, ok bool) {
+// laterSpots groups t.more by molecule: numbering the table's molecules
+// in slot order (segment by segment, slot by slot, as Results visits
+// them), the later spots of molecule m are spots[off[m]:off[m+1]],
+// ascending (the order a sort of t.more by key and spot gives them). A
+// counting sort on the molecule, each key's slot found by one probe of
+// the table and its number by a bitmap of the used slots: cheaper than
+// sorting t.more and searching it once per molecule. It releases t.more
+// (Results runs once). false, with nothing done, when the table is too
+// large for int32 offsets.
+func (t *table) laterSpots() (off []int32, spots []reads.Spot, ok bool) {
 	n := 0
 	for _, c := range t.more {
 		n += len(c)
 	}
 	if n == 0 {
-		return nil, nil, nil, true
+		return nil, nil, true
 	}
-	base = make([]int, segments+1)
+	var base [segments + 1]int
 	for s := range t.segs {
 		base[s+1] = base[s] + len(t.segs[s].keys)
 	}
 	if base[segments] >= laterSpotsMax || n >= laterSpotsMax {
-		return nil, nil, nil, false
+		return nil, nil, false
 	}
-	off = make([]int32, base[segments]+1)
-	at := make([]int32, n) // each entry's slot, then where it goes
+	// used: a bit per slot; before[w]: the used slots before word w.
+	words := (base[segments] + 63) / 64
+	used := make([]uint64, words)
+	for s := range t.segs {
+		for i, k := range t.segs[s].keys {
+			if k != 0 {
+				g := base[s] + i
+				used[g>>6] |= 1 << (g & 63)
+			}
+		}
+	}
+	before := make([]int32, words+1)
+	for w, u := range used {
+		before[w+1] = before[w] + int32(bits.OnesCount64(u))
+	}
+	off = make([]int32, before[words]+1)
+	at := make([]int32, n) // each entry's molecule (−1: not in the table)
 	j := 0
 	for _, c := range t.more {
 		for _, ks := range c {
 			at[j] = -1
 			if s, i, found := t.slot(ks.key); found {
 				g := base[s] + i
-				at[j] = int32(g)
-				off[g+1]++
+				m := before[g>>6] + int32(bits.OnesCount64(used[g>>6]&(1<<(g&63)-1)))
+				at[j] = m
+				off[m+1]++
 			}
 			j++
 		}
 	}
-	for g := 1; g < len(off); g++ {
-		off[g] += off[g-1]
+	used, before = nil, nil
+	for m := 1; m < len(off); m++ {
+		off[m] += off[m-1]
 	}
 	next := slices.Clone(off[:len(off)-1])
 	spots = make([]reads.Spot, off[len(off)-1])
 	j = 0
-	for _, c := range t.more {
+	for ci, c := range t.more {
 		for _, ks := range c {
-			if g := at[j]; g >= 0 {
-				spots[next[g]] = ks.spot
-				next[g]++
+			if m := at[j]; m >= 0 {
+				spots[next[m]] = ks.spot
+				next[m]++
 			}
 			j++
 		}
+		t.more[ci] = nil
 	}
-	for g := 0; g+1 < len(off); g++ {
-		if r := spots[off[g]:off[g+1]]; len(r) > 1 {
+	t.more = nil
+	for m := 0; m+1 < len(off); m++ {
+		if r := spots[off[m]:off[m+1]]; len(r) > 1 {
 			for a := 1; a < len(r); a++ { // a molecule's few spots: insertion sort
 				for b := a; b > 0 && r[b] < r[b-1]; b-- {
 					r[b], r[b-1] = r[b-1], r[b]
@@ -418,7 +441,7 @@ func (t *table) laterSpots() (base []int, off []int32, spots []reads.Spot, ok bo
 			}
 		}
 	}
-	return base, off, spots, true
+	return off, spots, true
 }
 
 // appendChunked appends ks to the last chunk, starting a new one of
@@ -466,7 +489,8 @@ func (h *Hashed) Results(n int) []Result {
 		// The spots of each molecule's later reads: grouped by slot, or
 		// (a table too large for that) t.more sorted and searched.
 		var more []keySpot
-		base, off, later, grouped := t.laterSpots()
+		off, later, grouped := t.laterSpots()
+		mol := 0 // the molecule's number in slot order (laterSpots)
 		if !grouped {
 			more = t.sortedMore()
 		}
@@ -495,6 +519,8 @@ func (h *Hashed) Results(n int) []Result {
 				if k == 0 {
 					continue
 				}
+				m := mol
+				mol++
 				c := int64(sg.cnt[i])
 				if c == 255 {
 					c = t.over[k]
@@ -506,8 +532,7 @@ func (h *Hashed) Results(n int) []Result {
 					}
 					switch { // a molecule of one read has no later spots
 					case c > 1 && len(later) > 0:
-						g := base[s] + i
-						spots = append(spots, later[off[g]:off[g+1]]...)
+						spots = append(spots, later[off[m]:off[m+1]]...)
 					case c > 1 && len(more) > 0:
 						j := sort.Search(len(more), func(j int) bool { return more[j].key >= k })
 						for ; j < len(more) && more[j].key == k; j++ {
