@@ -110,17 +110,19 @@ func Open(r io.Reader, threads int) (*Input, error) {
 		if len(head) >= 16 && head[3]&4 != 0 && head[12] == 'B' && head[13] == 'C' {
 			in.Compression = BGZF
 			in.tail = &tailReader{r: raw}
-			// 2 × threads goroutines inflate blocks (one, in Read, for
+			// 4 × threads goroutines inflate blocks (one, in Read, for
 			// threads = 1), with twice as many blocks in flight so the
 			// parser rarely waits (bgzf.go). More inflaters than cores
 			// keep the cores busy while the parser takes one: on 2 cores
 			// the sorted bench BAM took 1.30 s with 4 inflaters against
-			// 1.42 s with 2, the same CPU (BENCHMARKS.md section 2). At
+			// 1.42 s with 2, the same CPU, and later (five alternating
+			// runs each, medians) 1.42 s with 4, 1.34 s with 6, 1.31 s
+			// with 8, for 2 MB more memory (BENCHMARKS.md section 2). At
 			// most maxBlockReaders, each holding an inflater and two
 			// 64 KiB buffers per block in flight.
 			workers := threads
 			if threads > 1 {
-				workers = 2 * threads
+				workers = 4 * threads
 			}
 			in.bg = newBGZFReader(in.tail, min(workers, maxBlockReaders))
 			dec = in.bg
