@@ -79,39 +79,44 @@ const gaussAnchor = 32
 // gaussGrid sets dst[i] = exp(−z_i²/2), z_i = (x[i] − μ)/σ, for x on the
 // uniform grid of step gridStep, by the exact recurrence of a Gaussian on a lattice: with
 // d = step/σ, u_{i+1} = u_i r_i, r_{i+1} = r_i e^{−d²}, r_i = e^{−z_i d − d²/2}.
-// Two exponentials per gaussAnchor points instead of one per point: the
-// weights were most of the cost of a lognormal fit. The blocks of
-// gaussAnchor points between direct values are independent chains of
-// products, so they advance side by side (the processor overlaps them);
-// each block's values are those of gaussGridSeq, bit for bit. Four at a
-// time in named variables, which the compiler keeps in registers: a step
-// of one block is two multiplications, the second waiting on the first
-// of the step before, so four blocks fill the multipliers.
+// Two exponentials per gaussAnchor points instead of one per point (chainGrid):
+// the weights were most of the cost of a lognormal fit.
 func gaussGrid(dst, x []float64, mu, sigma float64) {
-	n := len(x)
-	nb := (n + gaussAnchor - 1) / gaussAnchor
-	if n < 2 || nb > maxBlocks {
-		gaussGridSeq(dst, x, mu, sigma)
-		return
-	}
 	// The nominal step, not x[1]-x[0]: grid points are float64 roundings of
 	// a lattice, and their differences are off by up to 4e-15 absolute.
 	d := gridStep / sigma
-	q := math.Exp(-d * d)
-	// Blocks in fours, whole (a short last block and the blocks that pad
-	// to four run on past the grid into buf, and are not copied).
-	var us, rs [maxBlocks]float64
-	for b := 0; b < nb; b++ {
-		z := (x[b*gaussAnchor] - mu) / sigma
-		us[b] = math.Exp(-0.5 * z * z)
-		rs[b] = math.Exp(-z*d - 0.5*d*d)
+	chainGrid(dst[:len(x)], math.Exp(-d*d), func(i int) (float64, float64) {
+		z := (x[i] - mu) / sigma
+		return math.Exp(-0.5 * z * z), math.Exp(-z*d - 0.5*d*d)
+	})
+}
+
+// chainGrid fills dst by blocks of gaussAnchor points: the block from
+// point i starts at (u, r) = start(i) and goes on by u ← u·r, r ← r·q
+// (gaussGrid's recurrence; powerGrid's with q = 1, where r·1 = r exactly).
+// The blocks are independent chains of products, so four advance side by
+// side in named variables, which the compiler keeps in registers: a step
+// of one block is two multiplications, the second waiting on the first of
+// the step before, so four blocks fill the multipliers. Each block's
+// values are the one-at-a-time recurrence's, bit for bit
+// (TestGridChainsSideBySide); the blocks that pad to four run into buf
+// and are not copied.
+func chainGrid(dst []float64, q float64, start func(i int) (u, r float64)) {
+	const span = 4 * gaussAnchor
+	n := len(dst)
+	from := func(i int) (float64, float64) {
+		if i < n {
+			return start(i)
+		}
+		return 0, 0
 	}
-	var buf [maxBlocks * gaussAnchor]float64
-	for g := 0; g < nb; g += 4 {
-		u0, u1, u2, u3 := us[g], us[g+1], us[g+2], us[g+3]
-		r0, r1, r2, r3 := rs[g], rs[g+1], rs[g+2], rs[g+3]
-		p := (*[4 * gaussAnchor]float64)(buf[g*gaussAnchor:])
-		p[0], p[gaussAnchor], p[2*gaussAnchor], p[3*gaussAnchor] = u0, u1, u2, u3
+	var buf [span]float64
+	for g := 0; g < n; g += span {
+		u0, r0 := from(g)
+		u1, r1 := from(g + gaussAnchor)
+		u2, r2 := from(g + 2*gaussAnchor)
+		u3, r3 := from(g + 3*gaussAnchor)
+		buf[0], buf[gaussAnchor], buf[2*gaussAnchor], buf[3*gaussAnchor] = u0, u1, u2, u3
 		for s := 1; s < gaussAnchor; s++ {
 			u0 *= r0
 			r0 *= q
@@ -121,41 +126,9 @@ func gaussGrid(dst, x []float64, mu, sigma float64) {
 			r2 *= q
 			u3 *= r3
 			r3 *= q
-			p[s], p[gaussAnchor+s], p[2*gaussAnchor+s], p[3*gaussAnchor+s] = u0, u1, u2, u3
+			buf[s], buf[gaussAnchor+s], buf[2*gaussAnchor+s], buf[3*gaussAnchor+s] = u0, u1, u2, u3
 		}
-	}
-	copy(dst[:n], buf[:n])
-}
-
-// maxBlocks bounds the blocks gaussGrid and the power-law weights advance
-// side by side: the whole grid (251 points) is 8 blocks of gaussAnchor
-// (a multiple of the four they advance at a time).
-const maxBlocks = 8
-
-// gaussGridSeq is gaussGrid one point after another (the reference its
-// test compares with, and the path for a grid of more than maxBlocks blocks).
-func gaussGridSeq(dst, x []float64, mu, sigma float64) {
-	if len(x) == 0 {
-		return
-	}
-	if len(x) == 1 {
-		z := (x[0] - mu) / sigma
-		dst[0] = math.Exp(-0.5 * z * z)
-		return
-	}
-	d := gridStep / sigma
-	q := math.Exp(-d * d)
-	var u, r float64
-	for i := range x {
-		if i%gaussAnchor == 0 {
-			z := (x[i] - mu) / sigma
-			u = math.Exp(-0.5 * z * z)
-			r = math.Exp(-z*d - 0.5*d*d)
-		} else {
-			u *= r
-			r *= q
-		}
-		dst[i] = u
+		copy(dst[g:], buf[:])
 	}
 }
 

@@ -60,18 +60,67 @@ func TestMixSums15Kernel(t *testing.T) {
 	}
 }
 
+// gaussGridSeq and powerGridSeq are gaussGrid and powerGrid one point
+// after another, as they were before chainGrid: the references of the
+// tests below.
+func gaussGridSeq(dst, x []float64, mu, sigma float64) {
+	if len(x) == 0 {
+		return
+	}
+	if len(x) == 1 {
+		z := (x[0] - mu) / sigma
+		dst[0] = math.Exp(-0.5 * z * z)
+		return
+	}
+	d := gridStep / sigma
+	q := math.Exp(-d * d)
+	var u, r float64
+	for i := range x {
+		if i%gaussAnchor == 0 {
+			z := (x[i] - mu) / sigma
+			u = math.Exp(-0.5 * z * z)
+			r = math.Exp(-z*d - 0.5*d*d)
+		} else {
+			u *= r
+			r *= q
+		}
+		dst[i] = u
+	}
+}
+
+func powerGridSeq(dst, x []float64, alpha, a float64) {
+	r := math.Exp(-alpha * gridStep)
+	var w float64
+	for i := range x {
+		if i%gaussAnchor == 0 {
+			w = math.Exp(-alpha * (x[i] - a))
+		} else {
+			w *= r
+		}
+		dst[i] = w
+	}
+}
+
 // TestGridChainsSideBySide: gaussGrid and powerGrid, which advance their
-// blocks of products side by side, give the bits of the one-point-after-
-// another recurrences, on every stretch of the grid and random parameters
-// over the fits' ranges.
+// blocks of products side by side (chainGrid), give the bits of the
+// one-point-after-another recurrences, on every stretch of the grid and
+// random parameters over the fits' ranges, and on stretches longer than
+// the grid (more than one group of four blocks).
 func TestGridChainsSideBySide(t *testing.T) {
 	r := rand.New(rand.NewPCG(32, 8))
 	k := gridKernel(15)
 	n := len(k.x)
-	got, want := make([]float64, n), make([]float64, n)
+	long := make([]float64, 3*n)
+	for i := range long {
+		long[i] = gridLo + float64(i)*gridStep
+	}
+	got, want := make([]float64, len(long)), make([]float64, len(long))
 	for trial := 0; trial < 4000; trial++ {
 		lo := r.IntN(n)
 		x := k.x[lo : lo+r.IntN(n-lo+1)]
+		if trial%5 == 0 { // both families (trial%2)
+			x = long[:r.IntN(len(long)+1)]
+		}
 		if trial%2 == 0 {
 			mu := gridLo + (gridHi-gridLo)*r.Float64()
 			sigma := lnSigmaMin + (lnSigmaMax-lnSigmaMin)*r.Float64()

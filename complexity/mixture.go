@@ -603,48 +603,13 @@ func (f *paretoFit) weights(p []float64) (lo, hi int, ok bool) {
 }
 
 // powerGrid sets dst[i] = e^{−α(x[i] − a)} on the grid, a direct value
-// every gaussAnchor points and w_{i+1} = w_i e^{−α·step} between them; the
-// blocks advance side by side as in gaussGrid, each with powerGridSeq's bits.
+// every gaussAnchor points and w_{i+1} = w_i e^{−α·step} between them
+// (chainGrid with a constant ratio).
 func powerGrid(dst, x []float64, alpha, a float64) {
-	n := len(x)
-	nb := (n + gaussAnchor - 1) / gaussAnchor
-	if nb > maxBlocks {
-		powerGridSeq(dst, x, alpha, a)
-		return
-	}
 	r := math.Exp(-alpha * gridStep)
-	var ws [maxBlocks]float64
-	for b := 0; b < nb; b++ {
-		ws[b] = math.Exp(-alpha * (x[b*gaussAnchor] - a))
-	}
-	var buf [maxBlocks * gaussAnchor]float64
-	for g := 0; g < nb; g += 4 {
-		w0, w1, w2, w3 := ws[g], ws[g+1], ws[g+2], ws[g+3]
-		p := (*[4 * gaussAnchor]float64)(buf[g*gaussAnchor:])
-		p[0], p[gaussAnchor], p[2*gaussAnchor], p[3*gaussAnchor] = w0, w1, w2, w3
-		for s := 1; s < gaussAnchor; s++ {
-			w0 *= r
-			w1 *= r
-			w2 *= r
-			w3 *= r
-			p[s], p[gaussAnchor+s], p[2*gaussAnchor+s], p[3*gaussAnchor+s] = w0, w1, w2, w3
-		}
-	}
-	copy(dst[:n], buf[:n])
-}
-
-// powerGridSeq is powerGrid one point after another (its test's reference).
-func powerGridSeq(dst, x []float64, alpha, a float64) {
-	r := math.Exp(-alpha * gridStep)
-	var w float64
-	for i := range x {
-		if i%gaussAnchor == 0 {
-			w = math.Exp(-alpha * (x[i] - a))
-		} else {
-			w *= r
-		}
-		dst[i] = w
-	}
+	chainGrid(dst[:len(x)], 1, func(i int) (float64, float64) {
+		return math.Exp(-alpha * (x[i] - a)), r
+	})
 }
 
 func (f *paretoFit) nll(p []float64) float64 {
