@@ -417,16 +417,23 @@ type rowReader struct {
 
 // row reads one data row already split into fields.
 func (rd *rowReader) row(f [][]byte, line int64) error {
-	id, err, idFirst := rd.parseFields(f, line, rd.values())
+	id, idFirst, err := rd.parseFields(f, line, rd.values())
 	if err != nil {
-		if idFirst {
-			if e := rd.checkID(id, line); e != nil {
-				return e
-			}
-		}
-		return err
+		return rd.rowErr(id, line, idFirst, err)
 	}
 	return rd.commit(id, line)
+}
+
+// rowErr is what is reported for a row that did not parse: a bad ID
+// first when the row's ID is checked before its cells (idFirst), as
+// parseFields says.
+func (rd *rowReader) rowErr(id []byte, line int64, idFirst bool, err error) error {
+	if idFirst {
+		if e := rd.checkID(id, line); e != nil {
+			return e
+		}
+	}
+	return err
 }
 
 // commit checks the row's ID and adds its values (rd.vals).
@@ -437,18 +444,34 @@ func (rd *rowReader) commit(id []byte, line int64) error {
 	return rd.apply(string(id), line)
 }
 
+// parseLine parses data line number lineNo into vals and returns its ID:
+// plain digits directly (parseFast, the common case of a large table),
+// anything else split into fields (through scratch, which it returns for
+// reuse). Errors are parseFields', and a field syntax error (idFirst false).
+func (rd *rowReader) parseLine(line []byte, lineNo int64, delim byte, vals []int64, scratch [][]byte) (id []byte, _ [][]byte, idFirst bool, err error) {
+	if id, ok := rd.parseFast(line, delim, vals); ok {
+		return id, scratch, false, nil
+	}
+	scratch, bad, msg := splitFields(line, delim, scratch)
+	if bad > 0 {
+		return nil, scratch, false, perr(lineNo, bad, ErrSyntax, "%s", msg)
+	}
+	id, idFirst, err = rd.parseFields(scratch, lineNo, vals)
+	return id, scratch, idFirst, err
+}
+
 // parseFields parses a row already split into fields into vals (one per
 // count column) and returns its ID. An error is the row's shape (idFirst
 // false) or a cell (idFirst true: a bad ID is reported before it, as the
 // row is checked in that order).
-func (rd *rowReader) parseFields(f [][]byte, line int64, vals []int64) (id []byte, err error, idFirst bool) {
+func (rd *rowReader) parseFields(f [][]byte, line int64, vals []int64) (id []byte, idFirst bool, err error) {
 	if len(f) != len(rd.names) && !(rd.meta < len(rd.names) && len(f) >= rd.meta && len(f) < len(rd.names)) {
 		col := int64(len(f))
 		if len(f) > len(rd.names) {
 			col = int64(len(rd.names) + 1)
 		}
-		return nil, perr(line, col, ErrShape, "row has %d fields but the header (line %d) has %d; every row needs one cell per column",
-			len(f), rd.headerLine, len(rd.names)), false
+		return nil, false, perr(line, col, ErrShape, "row has %d fields but the header (line %d) has %d; every row needs one cell per column",
+			len(f), rd.headerLine, len(rd.names))
 	}
 	id = trimSpace(f[0])
 	for j := 1; j < rd.meta; j++ {
@@ -458,23 +481,11 @@ func (rd *rowReader) parseFields(f [][]byte, line int64, vals []int64) (id []byt
 			if rd.layout == TaxaAsRows {
 				what = "sample"
 			}
-			return id, perr(line, int64(j+1), ce.kind, "%s %s: %s", what, quote(rd.names[j]), ce.msg), true
+			return id, true, perr(line, int64(j+1), ce.kind, "%s %s: %s", what, quote(rd.names[j]), ce.msg)
 		}
 		vals[j-1] = v
 	}
-	return id, nil, false
-}
-
-// fastRow reads a row of plain digits without splitting it into fields
-// first (the common case of a large table). It returns false, having
-// changed nothing, when the row needs the general path (quotes, spaces,
-// decimals, errors, omitted metadata), which then reads it again.
-func (rd *rowReader) fastRow(line []byte, delim byte, lineNo int64) (bool, error) {
-	id, ok := rd.parseFast(line, delim, rd.values())
-	if !ok {
-		return false, nil
-	}
-	return true, rd.commit(id, lineNo)
+	return id, false, nil
 }
 
 // parseFast parses a row of plain digits into vals and returns its ID, or

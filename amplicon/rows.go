@@ -13,28 +13,22 @@ package amplicon
 // rowsSerial reads the remaining data rows on the calling goroutine.
 func (rd *rowReader) rowsSerial(lr *lineReader, delim byte) error {
 	var scratch [][]byte
+	vals := rd.values()
 	for {
 		line, ok := lr.nextData()
 		if !ok {
-			break
+			return lr.err
 		}
-		if done, err := rd.fastRow(line, delim, lr.line); done || err != nil {
-			if err != nil {
-				return err
-			}
-			continue
+		var id []byte
+		var idFirst bool
+		var err error
+		if id, scratch, idFirst, err = rd.parseLine(line, lr.line, delim, vals, scratch); err != nil {
+			return rd.rowErr(id, lr.line, idFirst, err)
 		}
-		var bad int64
-		var msg string
-		scratch, bad, msg = splitFields(line, delim, scratch)
-		if bad > 0 {
-			return perr(lr.line, bad, ErrSyntax, "%s", msg)
-		}
-		if err := rd.row(scratch, lr.line); err != nil {
+		if err := rd.commit(id, lr.line); err != nil {
 			return err
 		}
 	}
-	return lr.err
 }
 
 // rowBatch carries parsed rows from the parsing goroutine to the adding one.
@@ -44,8 +38,8 @@ type rowBatch struct {
 	idEnd []int   // end of row i's ID in ids
 	lines []int64 // line numbers
 	// err ends the stream after the rows: the parser's first error (nil
-	// at the end of the input). With idFirst the row's ID, errID on line
-	// errLine, is checked first, as rowReader.row does.
+	// at the end of the input), reported by rowErr with the row's ID errID
+	// on line errLine and idFirst.
 	err     error
 	idFirst bool
 	errID   []byte
@@ -90,12 +84,7 @@ func (rd *rowReader) rowsPipelined(lr *lineReader, delim byte) error {
 			start = b.idEnd[i]
 		}
 		if b.err != nil {
-			if b.idFirst {
-				if err := rd.checkID(b.errID, b.errLine); err != nil {
-					return fail(err)
-				}
-			}
-			return fail(b.err)
+			return fail(rd.rowErr(b.errID, b.errLine, b.idFirst, b.err))
 		}
 		b.vals, b.ids, b.idEnd, b.lines = b.vals[:0], b.ids[:0], b.idEnd[:0], b.lines[:0]
 		free <- b
@@ -125,23 +114,13 @@ func (rd *rowReader) parseRows(lr *lineReader, delim byte, per int, free <-chan 
 		n := len(b.lines)
 		b.vals = b.vals[:(n+1)*width]
 		vals := b.vals[n*width:]
-		id, fast := rd.parseFast(line, delim, vals)
-		if !fast {
-			var bad int64
-			var msg string
-			scratch, bad, msg = splitFields(line, delim, scratch)
-			if bad > 0 {
-				b.vals = b.vals[:n*width]
-				b.err = perr(lr.line, bad, ErrSyntax, "%s", msg)
-				break
-			}
-			var err error
-			var idFirst bool
-			if id, err, idFirst = rd.parseFields(scratch, lr.line, vals); err != nil {
-				b.vals = b.vals[:n*width]
-				b.err, b.idFirst, b.errID, b.errLine = err, idFirst, append(b.errID[:0], id...), lr.line
-				break
-			}
+		var id []byte
+		var idFirst bool
+		var err error
+		if id, scratch, idFirst, err = rd.parseLine(line, lr.line, delim, vals, scratch); err != nil {
+			b.vals = b.vals[:n*width]
+			b.err, b.idFirst, b.errID, b.errLine = err, idFirst, append(b.errID[:0], id...), lr.line
+			break
 		}
 		b.ids = append(b.ids, id...)
 		b.idEnd = append(b.idEnd, len(b.ids))
