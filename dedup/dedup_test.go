@@ -3,7 +3,6 @@ package dedup
 import (
 	"math"
 	"math/rand/v2"
-	"reflect"
 	"testing"
 
 	"headroom/reads"
@@ -272,29 +271,5 @@ func TestHashedBudgetWithSpots(t *testing.T) {
 		if rr.Freq[j]<<rs.Shift != rs.Freq[j] {
 			t.Errorf("times %d: %d<<%d, subsampled %d", j, rr.Freq[j], rs.Shift, rs.Freq[j])
 		}
-	}
-}
-
-// TestLaterSpotsPaths: the later spots grouped by slot (laterSpots) and
-// the sorted-and-searched t.more of a table too large for that give the
-// same results.
-func TestLaterSpotsPaths(t *testing.T) {
-	fr := randomFragments(200000, 3)
-	run := func() []Result {
-		h := NewHashed(Options{OpticalDistance: 100})
-		for _, f := range fr {
-			h.Add(f)
-		}
-		return h.Results(3)
-	}
-	grouped := run()
-	defer func(v int) { laterSpotsMax = v }(laterSpotsMax)
-	laterSpotsMax = 0
-	searched := run()
-	if !reflect.DeepEqual(grouped, searched) {
-		t.Fatalf("grouped %+v\nsearched %+v", grouped, searched)
-	}
-	if grouped[0].OpticalDups == 0 {
-		t.Fatal("no optical duplicates: the test exercised no later spots")
 	}
 }

@@ -1,11 +1,8 @@
 package dedup
 
 import (
-	"cmp"
-	"math"
 	"math/bits"
 	"slices"
-	"sort"
 
 	"headroom/reads"
 )
@@ -333,19 +330,9 @@ func (h *Hashed) dropMore(t *table) {
 
 // has reports whether key is in t.
 func (t *table) has(key uint64) bool {
-	sg := &t.segs[key&(segments-1)]
-	mask := uint64(len(sg.keys) - 1)
-	for i := (key >> segmentBits) & mask; sg.keys[i] != 0; i = (i + 1) & mask {
-		if sg.keys[i] == key {
-			return true
-		}
-	}
-	return false
+	_, _, ok := t.slot(key)
+	return ok
 }
-
-// laterSpotsMax bounds the slots and later spots laterSpots groups (int32
-// offsets); a variable so that a test can take the other path.
-var laterSpotsMax = math.MaxInt32
 
 // slot returns the segment and slot of key in t, or false.
 func (t *table) slot(key uint64) (int, int, bool) {
@@ -363,26 +350,22 @@ func (t *table) slot(key uint64) (int, int, bool) {
 // laterSpots groups t.more by molecule: numbering the table's molecules
 // in slot order (segment by segment, slot by slot, as Results visits
 // them), the later spots of molecule m are spots[off[m]:off[m+1]],
-// ascending (the order a sort of t.more by key and spot gives them). A
+// ascending (as a sort of t.more by key and spot would give them). A
 // counting sort on the molecule, each key's slot found by one probe of
 // the table and its number by a bitmap of the used slots: cheaper than
 // sorting t.more and searching it once per molecule. It releases t.more
-// (Results runs once). false, with nothing done, when the table is too
-// large for int32 offsets.
-func (t *table) laterSpots() (off []int32, spots []reads.Spot, ok bool) {
+// (Results runs once).
+func (t *table) laterSpots() (off []int, spots []reads.Spot) {
 	n := 0
 	for _, c := range t.more {
 		n += len(c)
 	}
 	if n == 0 {
-		return nil, nil, true
+		return nil, nil
 	}
 	var base [segments + 1]int
 	for s := range t.segs {
 		base[s+1] = base[s] + len(t.segs[s].keys)
-	}
-	if base[segments] >= laterSpotsMax || n >= laterSpotsMax {
-		return nil, nil, false
 	}
 	// used: a bit per slot; before[w]: the used slots before word w.
 	words := (base[segments] + 63) / 64
@@ -395,39 +378,40 @@ func (t *table) laterSpots() (off []int32, spots []reads.Spot, ok bool) {
 			}
 		}
 	}
-	before := make([]int32, words+1)
+	before := make([]int, words+1)
 	for w, u := range used {
-		before[w+1] = before[w] + int32(bits.OnesCount64(u))
+		before[w+1] = before[w] + bits.OnesCount64(u)
 	}
-	off = make([]int32, before[words]+1)
-	at := make([]int32, n) // each entry's molecule (−1: not in the table)
-	j := 0
+	// molecule is the number of the molecule key belongs to (−1: not in
+	// the table). Called twice per spot, to count and then to place it:
+	// a probe costs less than keeping each spot's molecule in between.
+	molecule := func(key uint64) int {
+		s, i, found := t.slot(key)
+		if !found {
+			return -1
+		}
+		g := base[s] + i
+		return before[g>>6] + bits.OnesCount64(used[g>>6]&(1<<(g&63)-1))
+	}
+	off = make([]int, before[words]+1)
 	for _, c := range t.more {
 		for _, ks := range c {
-			at[j] = -1
-			if s, i, found := t.slot(ks.key); found {
-				g := base[s] + i
-				m := before[g>>6] + int32(bits.OnesCount64(used[g>>6]&(1<<(g&63)-1)))
-				at[j] = m
+			if m := molecule(ks.key); m >= 0 {
 				off[m+1]++
 			}
-			j++
 		}
 	}
-	used, before = nil, nil
 	for m := 1; m < len(off); m++ {
 		off[m] += off[m-1]
 	}
 	next := slices.Clone(off[:len(off)-1])
 	spots = make([]reads.Spot, off[len(off)-1])
-	j = 0
 	for ci, c := range t.more {
 		for _, ks := range c {
-			if m := at[j]; m >= 0 {
+			if m := molecule(ks.key); m >= 0 {
 				spots[next[m]] = ks.spot
 				next[m]++
 			}
-			j++
 		}
 		t.more[ci] = nil
 	}
@@ -441,7 +425,7 @@ func (t *table) laterSpots() (off []int32, spots []reads.Spot, ok bool) {
 			}
 		}
 	}
-	return off, spots, true
+	return off, spots
 }
 
 // appendChunked appends ks to the last chunk, starting a new one of
@@ -455,53 +439,21 @@ func appendChunked(chunks [][]keySpot, ks keySpot) [][]keySpot {
 	return chunks
 }
 
-// sortedMore returns t.more as one slice sorted by key and spot (the
-// order clusters ignores), releasing the chunks as it copies them, and keeps it
-// as t.more's only chunk.
-func (t *table) sortedMore() []keySpot {
-	n := 0
-	for _, c := range t.more {
-		n += len(c)
-	}
-	all := make([]keySpot, 0, n)
-	for i, c := range t.more {
-		all = append(all, c...)
-		t.more[i] = nil
-	}
-	// By key, then spot: a molecule's spots only feed clusters, whose
-	// count does not depend on their order.
-	slices.SortFunc(all, func(a, b keySpot) int {
-		if c := cmp.Compare(a.key, b.key); c != 0 {
-			return c
-		}
-		return cmp.Compare(a.spot, b.spot)
-	})
-	t.more = [][]keySpot{all} // one sorted chunk: Results may be called again
-	return all
-}
-
 // Results implements Counter.
 func (h *Hashed) Results(n int) []Result {
 	h.libs = grow(h.libs, n-1)
 	var spots []reads.Spot
 	for li, t := range h.tabs {
 		l := &h.libs[li]
-		// The spots of each molecule's later reads: grouped by slot, or
-		// (a table too large for that) t.more sorted and searched.
-		var more []keySpot
-		off, later, grouped := t.laterSpots()
-		mol := 0 // the molecule's number in slot order (laterSpots)
-		if !grouped {
-			more = t.sortedMore()
-		}
-		nmore := len(later) + len(more)
-		var group []umiMol // molecules with a UMI group, collapsed below
-		var keys []umiMol  // FASTQ molecules with packed keys, likewise
+		off, later := t.laterSpots() // the spots of each molecule's later reads
+		mol := 0                     // the molecule's number in slot order (laterSpots)
+		var group []umiMol           // molecules with a UMI group, collapsed below
+		var keys []umiMol            // FASTQ molecules with packed keys, likewise
 		var keySpots []reads.Spot
 		if t.seqs {
 			// Sized once: the molecules and their spots are held until
 			// collapseKeys, and doubling slices would hold up to twice that.
-			used, nspots := 0, nmore
+			used, nspots := 0, len(later)
 			for s := range t.segs {
 				used += t.segs[s].used
 				for _, sp := range t.segs[s].spot {
@@ -530,14 +482,8 @@ func (h *Hashed) Results(n int) []Result {
 					if sg.spot[i] != 0 {
 						spots = append(spots, sg.spot[i])
 					}
-					switch { // a molecule of one read has no later spots
-					case c > 1 && len(later) > 0:
+					if c > 1 && len(later) > 0 { // a molecule of one read has no later spots
 						spots = append(spots, later[off[m]:off[m+1]]...)
-					case c > 1 && len(more) > 0:
-						j := sort.Search(len(more), func(j int) bool { return more[j].key >= k })
-						for ; j < len(more) && more[j].key == k; j++ {
-							spots = append(spots, more[j].spot)
-						}
 					}
 				}
 				if sg.cls != nil && sg.sa[i] != 0 {
